@@ -1,0 +1,47 @@
+package bot
+
+// access is who may run a command.
+type access int
+
+const (
+	// anyone in the workspace: calculations and help.
+	anyone access = iota
+	// athletes for their own linked athlete, coaches for any; the command
+	// checks the athlete with call.mayActFor once it knows who.
+	selfOrCoach
+	// coaches and head coaches.
+	coachOnly
+	// head coaches only: removals, team settings, roles.
+	headOnly
+)
+
+// command is one entry of the command language.
+type command struct {
+	name    string   // words that start the line, e.g. "athlete add"
+	aliases []string // other words meaning the same, e.g. "athletes"
+	topic   string   // help topic
+	usage   string   // the full form, e.g. "athlete add NAME height H ..."
+	example string   // a line that works as typed
+	summary string   // one line for help
+	access  access
+	run     func(c *call) (Reply, error)
+}
+
+func (c command) names() []string { return append([]string{c.name}, c.aliases...) }
+
+// allCommands is the whole command language, one group per file.
+func allCommands() []command {
+	var cs []command
+	for _, group := range [][]command{
+		helpCommands(),
+		athleteCommands(),
+		teamCommands(),
+		logCommands(),
+		calcCommands(),
+		digestCommands(),
+		roleCommands(),
+	} {
+		cs = append(cs, group...)
+	}
+	return cs
+}

@@ -1,0 +1,147 @@
+package bot
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"log/slog"
+	"slices"
+	"strings"
+	"time"
+)
+
+// Config is what an Engine needs from its surroundings.
+type Config struct {
+	Store Store
+	Clock Clock // nil means the wall clock
+	// HeadCoaches are chat user ids that are head coaches whatever the store
+	// says (the first head coaches, from configuration).
+	HeadCoaches []string
+	Logger      *slog.Logger // nil discards
+}
+
+// Engine parses and runs commands. It is safe for concurrent use: all state
+// lives in the store, and each command runs in its own transaction.
+type Engine struct {
+	store       Store
+	clock       Clock
+	headCoaches []string
+	log         *slog.Logger
+	commands    []command
+}
+
+// New returns an engine over the given store.
+func New(cfg Config) (*Engine, error) {
+	if cfg.Store == nil {
+		return nil, errors.New("bot: no store")
+	}
+	e := &Engine{store: cfg.Store, clock: cfg.Clock, headCoaches: slices.Clone(cfg.HeadCoaches), log: cfg.Logger}
+	if e.clock == nil {
+		e.clock = ClockFunc(time.Now)
+	}
+	if e.log == nil {
+		e.log = slog.New(slog.DiscardHandler)
+	}
+	e.commands = allCommands()
+	return e, nil
+}
+
+// Handle runs one request and returns the reply. It never panics on any
+// input: a panic inside a command is recovered and reported as the bot's own
+// failure, with nothing written (the transaction rolls back).
+func (e *Engine) Handle(ctx context.Context, req Request) (reply Reply) {
+	start := e.clock.Now()
+	if req.Time.IsZero() {
+		req.Time = start
+	}
+	defer func() {
+		if p := recover(); p != nil {
+			e.log.Error("command panicked", "text", req.Text, "panic", fmt.Sprint(p))
+			reply = internalReply()
+		}
+	}()
+	ts := tokenize(req.Text)
+	if len(ts) == 0 {
+		return Reply{Title: "clearbot", Lines: []string{"Type `help` to see what I can do."}, Example: "help", Ephemeral: true}
+	}
+	cmd, args, err := e.lookup(ts)
+	if err != nil {
+		return e.refusal(req, err)
+	}
+	c := &call{ctx: ctx, e: e, req: req, cmd: cmd, args: args, now: req.Time}
+	if err := c.loadSpeaker(); err != nil {
+		return e.refusal(req, err)
+	}
+	if err := c.allowed(cmd.access); err != nil {
+		return e.refusal(req, err)
+	}
+	r, err := cmd.run(c)
+	if err != nil {
+		return e.refusal(req, err)
+	}
+	return r
+}
+
+// refusal turns an error into a reply: a UserError's own message, or a
+// generic failure for anything else (logged, never shown raw).
+func (e *Engine) refusal(req Request, err error) Reply {
+	var ue *UserError
+	if errors.As(err, &ue) {
+		return Reply{Kind: ue.Kind, Title: "Not done", Lines: []string{ue.Msg}, Example: ue.Example, Ephemeral: true}
+	}
+	if errors.Is(err, errDuplicate) {
+		return Reply{Title: "Already done", Lines: []string{"That message was already handled; nothing was logged twice."}, Ephemeral: true}
+	}
+	if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+		return Reply{Kind: KindInternal, Title: "Not done", Lines: []string{"The bot is shutting down; nothing was changed. Please send it again in a minute."}, Ephemeral: true}
+	}
+	e.log.Error("command failed", "text", req.Text, "user", req.UserID, "err", err)
+	return internalReply()
+}
+
+func internalReply() Reply {
+	return Reply{Kind: KindInternal, Title: "Not done", Lines: []string{"Something went wrong on my side; nothing was changed. Please try again, and tell a coach if it keeps happening."}, Ephemeral: true}
+}
+
+// lookup finds the command whose words start the line, preferring the
+// longest match ("athlete add" over "athlete").
+func (e *Engine) lookup(ts []token) (command, []token, error) {
+	var (
+		best  command
+		found bool
+	)
+	for _, c := range e.commands {
+		for _, name := range c.names() {
+			words := strings.Fields(name)
+			if len(words) > len(ts) || (found && len(words) <= len(strings.Fields(best.name))) {
+				continue
+			}
+			if matchWords(ts, words) {
+				best, found = c, true
+				best.name = name
+			}
+		}
+	}
+	if found {
+		return best, ts[len(strings.Fields(best.name)):], nil
+	}
+	var firsts []string
+	for _, c := range e.commands {
+		for _, name := range c.names() {
+			firsts = append(firsts, strings.Fields(name)[0])
+		}
+	}
+	if s, ok := nearest(ts[0].Lower, firsts); ok {
+		return command{}, nil, usageErr("help", "I don't know the command %q. Did you mean %q?", ts[0].Raw, s)
+	}
+	return command{}, nil, usageErr("help", "I don't know the command %q. Type help for the list.", ts[0].Raw)
+}
+
+func matchWords(ts []token, words []string) bool {
+	for i, w := range words {
+		if ts[i].Lower != w {
+			return false
+		}
+	}
+	return true
+}

@@ -1,0 +1,14 @@
+package bot
+
+import "time"
+
+// Request is one line typed by a person, as a front end received it.
+type Request struct {
+	UserID    string    // chat user id ("" in the terminal means the operator)
+	UserName  string    // display name, for replies and the audit trail
+	Channel   string    // channel id, or "" for a direct message / the terminal
+	Direct    bool      // a direct message to the bot
+	Text      string    // the command, without any mention of the bot
+	Time      time.Time // when the message was sent; zero means now
+	MessageID string    // unique per delivered message; a repeat is handled once
+}

@@ -1,0 +1,185 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"log/slog"
+	"os"
+	"path/filepath"
+	"time"
+
+	"github.com/clearbot-team/clearbot/bot"
+	"github.com/clearbot-team/clearbot/internal/botstore"
+	"github.com/clearbot-team/clearbot/internal/console"
+	"github.com/clearbot-team/clearbot/internal/demo"
+	"github.com/clearbot-team/clearbot/store"
+)
+
+// operatorID is the chat user id of whoever runs the terminal: a head coach.
+const operatorID = "operator"
+
+// app is the running bot: its store, engine and front ends.
+type app struct {
+	cfg    config
+	io     stdio
+	log    *slog.Logger
+	db     *store.DB
+	engine *bot.Engine
+}
+
+// newApp opens the data file (or the re-seeded demo file) and builds the engine.
+func newApp(ctx context.Context, cfg config, io stdio) (*app, error) {
+	a := &app{cfg: cfg, io: io, log: newLogger(cfg.LogLevel, io.Err)}
+	path := cfg.DataPath
+	if cfg.Demo {
+		path = filepath.Join(os.TempDir(), "clearbot-demo", "demo.db")
+		if err := os.Remove(path); err != nil && !errors.Is(err, os.ErrNotExist) {
+			return nil, fmt.Errorf("reset demo file: %w", err)
+		}
+	}
+	db, err := store.Open(path, store.Options{Timeout: cfg.LockWait})
+	if err != nil {
+		return nil, err
+	}
+	a.db = db
+	heads := append([]string(nil), cfg.Heads...)
+	if !cfg.slack() || cfg.As != "" {
+		heads = append(heads, operatorID)
+	}
+	a.engine, err = bot.New(bot.Config{Store: botstore.New(db), HeadCoaches: heads, Logger: a.log})
+	if err != nil {
+		db.Close()
+		return nil, err
+	}
+	if cfg.Demo {
+		if err := a.seedDemo(ctx); err != nil {
+			db.Close()
+			return nil, err
+		}
+	}
+	return a, nil
+}
+
+// seedDemo types the invented squad's script into the engine.
+func (a *app) seedDemo(ctx context.Context) error {
+	loc, err := time.LoadLocation("Europe/London")
+	if err != nil {
+		return fmt.Errorf("demo: %w", err)
+	}
+	for i, l := range demo.Script(time.Now(), loc) {
+		r := a.engine.Handle(ctx, bot.Request{UserID: operatorID, UserName: "demo", Text: l.Text, Time: l.Time, MessageID: fmt.Sprintf("demo-%d", i)})
+		if !r.OK() {
+			return fmt.Errorf("demo: seeding %q: %s", l.Text, firstLine(r))
+		}
+	}
+	return nil
+}
+
+func firstLine(r bot.Reply) string {
+	if len(r.Lines) > 0 {
+		return r.Lines[0]
+	}
+	return r.Title
+}
+
+// Close releases the store.
+func (a *app) Close() error { return a.db.Close() }
+
+// runBot runs the bot until ctx ends (a signal) or, in the terminal, until
+// the end of standard input.
+func runBot(ctx context.Context, cfg config, io stdio) error {
+	a, err := newApp(ctx, cfg, io)
+	if err != nil {
+		return err
+	}
+	defer a.Close()
+	if cfg.slack() {
+		return a.runSlack(ctx)
+	}
+	return a.runTerminal(ctx)
+}
+
+func (a *app) runTerminal(ctx context.Context) error {
+	user, name := operatorID, "operator"
+	if a.cfg.As != "" {
+		user, name = a.cfg.As, a.cfg.As
+	}
+	t := &console.Terminal{
+		Handler: a.engine, In: a.io.In, Out: a.io.Out,
+		UserID: user, UserName: name, FilesDir: a.cfg.FilesDir, Prompt: isTerminal(a.io.In),
+	}
+	if t.Prompt {
+		where := a.db.Path()
+		if a.cfg.Demo {
+			where = "the demo squad (Harbour Lane Athletics Club, invented)"
+		}
+		fmt.Fprintf(a.io.Out, "clearbot on %s. Type help, or Ctrl-D to leave.\n", where)
+	}
+	return t.Run(ctx)
+}
+
+// isTerminal reports whether r is an interactive terminal.
+func isTerminal(r any) bool {
+	f, ok := r.(*os.File)
+	if !ok {
+		return false
+	}
+	st, err := f.Stat()
+	return err == nil && st.Mode()&os.ModeCharDevice != 0
+}
+
+func newLogger(level string, w interface{ Write([]byte) (int, error) }) *slog.Logger {
+	var l slog.Level
+	if err := l.UnmarshalText([]byte(level)); err != nil {
+		l = slog.LevelInfo
+	}
+	return slog.New(slog.NewTextHandler(w, &slog.HandlerOptions{Level: l}))
+}
+
+// runBackup takes a consistent hot copy of the data file, also while a bot
+// is running on it (bbolt allows a reader beside the writer).
+func runBackup(ctx context.Context, cfg config, io stdio) error {
+	if len(cfg.SubArgs) != 1 {
+		return errors.New("usage: clearbot backup [--data PATH] FILE")
+	}
+	db, err := store.Open(cfg.DataPath, store.Options{ReadOnly: true, Timeout: cfg.LockWait})
+	if err != nil {
+		return err
+	}
+	defer db.Close()
+	n, err := db.BackupToFile(cfg.SubArgs[0])
+	if err != nil {
+		return err
+	}
+	if err := store.Check(cfg.SubArgs[0]); err != nil {
+		return fmt.Errorf("backup written but fails its check: %w", err)
+	}
+	fmt.Fprintf(io.Out, "backup of %s written to %s (%d bytes), consistency check passed\n", cfg.DataPath, cfg.SubArgs[0], n)
+	return ctx.Err()
+}
+
+// runRestore puts a checked backup in place of the data file.
+func runRestore(cfg config, io stdio) error {
+	if len(cfg.SubArgs) != 1 {
+		return errors.New("usage: clearbot restore [--data PATH] FILE")
+	}
+	if err := store.Restore(cfg.SubArgs[0], cfg.DataPath); err != nil {
+		return err
+	}
+	fmt.Fprintf(io.Out, "restored %s from %s; the previous file is kept as %s.before-restore\n", cfg.DataPath, cfg.SubArgs[0], cfg.DataPath)
+	return nil
+}
+
+// runCheck verifies the data file.
+func runCheck(cfg config, io stdio) error {
+	path := cfg.DataPath
+	if len(cfg.SubArgs) == 1 {
+		path = cfg.SubArgs[0]
+	}
+	if err := store.Check(path); err != nil {
+		return err
+	}
+	fmt.Fprintf(io.Out, "%s: consistency check passed\n", path)
+	return nil
+}

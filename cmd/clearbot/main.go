@@ -1,0 +1,53 @@
+// Command clearbot is the high-jump coaching bot. With Slack credentials in
+// the environment it serves the team's Slack workspace; without them it runs
+// in the terminal, one command a line.
+//
+//	clearbot [flags]              run (terminal, or Slack when configured)
+//	clearbot backup [flags] FILE  hot copy of the data file
+//	clearbot restore [flags] FILE put a backup in place of the data file
+//	clearbot check [flags]        verify the data file's consistency
+package main
+
+import (
+	"context"
+	"fmt"
+	"os"
+	"os/signal"
+	"syscall"
+	_ "time/tzdata" // time zones on machines without a zone database
+)
+
+func main() {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	code := run(ctx, os.Args[1:], stdio{os.Stdin, os.Stdout, os.Stderr}, os.Getenv)
+	stop()
+	os.Exit(code)
+}
+
+// run parses the command line and runs the chosen subcommand, returning the
+// process exit code: 0 done, 1 failed, 2 bad usage.
+func run(ctx context.Context, args []string, io stdio, getenv func(string) string) int {
+	cfg, err := parseConfig(args, getenv, io.Err)
+	if err != nil {
+		if err == errHelp {
+			return 0
+		}
+		fmt.Fprintln(io.Err, "clearbot:", err)
+		return 2
+	}
+	switch cfg.Sub {
+	case "backup":
+		err = runBackup(ctx, cfg, io)
+	case "restore":
+		err = runRestore(cfg, io)
+	case "check":
+		err = runCheck(cfg, io)
+	default:
+		err = runBot(ctx, cfg, io)
+	}
+	if err != nil {
+		fmt.Fprintln(io.Err, "clearbot:", err)
+		return 1
+	}
+	return 0
+}

@@ -1,0 +1,174 @@
+// Package record defines the values clearbot keeps: athlete profiles,
+// jump attempts, team settings, chat users with their roles, audit entries
+// and digest bookkeeping. They are plain values in SI units (metres,
+// kilograms, metres per second); storage, parsing and display live elsewhere.
+package record
+
+import "time"
+
+// Sex selects the body-segment tables of the mechanics model.
+type Sex string
+
+// Sexes a profile may carry; SexUnset means the profile does not say.
+const (
+	SexUnset  Sex = ""
+	SexMale   Sex = "m"
+	SexFemale Sex = "f"
+)
+
+// Leg is a take-off leg.
+type Leg string
+
+// Take-off legs; LegUnset means the profile does not say.
+const (
+	LegUnset Leg = ""
+	LegLeft  Leg = "left"
+	LegRight Leg = "right"
+)
+
+// Athlete is one athlete's profile. Zero numeric fields mean "not given".
+type Athlete struct {
+	ID            uint64    `json:"id"`   // assigned by the store, never reused
+	Name          string    `json:"name"` // unique, compared case-insensitively
+	StatureM      float64   `json:"stature_m,omitempty"`
+	MassKg        float64   `json:"mass_kg,omitempty"`
+	Sex           Sex       `json:"sex,omitempty"`
+	TakeoffLeg    Leg       `json:"leg,omitempty"`
+	PersonalBestM float64   `json:"pb_m,omitempty"`
+	BirthYear     int       `json:"birth_year,omitempty"`
+	Group         string    `json:"group,omitempty"`
+	Notes         string    `json:"notes,omitempty"`
+	Private       bool      `json:"private,omitempty"`
+	BodyDepthM    float64   `json:"body_depth_m,omitempty"` // midline to underside at the apex; 0 = model default
+	Created       time.Time `json:"created"`
+}
+
+// Outcome is one attempt's result in the trade's notation.
+type Outcome byte
+
+// Outcomes: O cleared, X failed, - passed.
+const (
+	Cleared Outcome = 'o'
+	Failed  Outcome = 'x'
+	Passed  Outcome = '-'
+)
+
+// String returns the notation letter: "o", "x" or "-".
+func (o Outcome) String() string { return string(rune(o)) }
+
+// Valid reports whether o is one of the three outcomes.
+func (o Outcome) Valid() bool { return o == Cleared || o == Failed || o == Passed }
+
+// Attempt is one jump at one bar height. Optional measurements are zero when
+// not given (none of them can truly be zero); the coach's margin has its own
+// flag because zero and negative margins are real.
+type Attempt struct {
+	AthleteID uint64    `json:"athlete"`
+	Time      time.Time `json:"time"` // the message time
+	Seq       uint32    `json:"seq"`  // orders attempts that share a Time; assigned by the store
+	BarM      float64   `json:"bar_m"`
+	Outcome   Outcome   `json:"outcome"`
+	Number    int       `json:"n"` // attempt number at this height, 1..3
+	Meet      bool      `json:"meet,omitempty"`
+
+	ApproachMS   float64 `json:"approach_ms,omitempty"`
+	TakeoffDistM float64 `json:"takeoff_m,omitempty"`
+	PeakM        float64 `json:"peak_m,omitempty"`
+	VzMS         float64 `json:"vz_ms,omitempty"`
+
+	HasCoachMargin bool    `json:"has_coach_margin,omitempty"`
+	CoachMarginM   float64 `json:"coach_margin_m,omitempty"` // coach's visual estimate; negative = knocked
+	HasModelMargin bool    `json:"has_model_margin,omitempty"`
+	ModelMarginM   float64 `json:"model_margin_m,omitempty"` // computed by the mechanics model
+
+	LoggedBy  string `json:"by,omitempty"`  // chat user id of who logged it
+	MessageID string `json:"msg,omitempty"` // chat message id; one message logs once
+	LineID    string `json:"line,omitempty"`
+	Note      string `json:"note,omitempty"`
+}
+
+// Key identifies an attempt in the store: athlete, time, sequence.
+type Key struct {
+	AthleteID uint64
+	Time      time.Time
+	Seq       uint32
+}
+
+// Key returns the attempt's store key.
+func (a Attempt) Key() Key { return Key{a.AthleteID, a.Time, a.Seq} }
+
+// Line is one logged command line: what undo removes as a whole.
+type Line struct {
+	ID        string    `json:"id"`
+	LoggedBy  string    `json:"by"`
+	Time      time.Time `json:"time"`
+	AthleteID uint64    `json:"athlete"`
+	Attempts  []Key     `json:"attempts"`
+	Text      string    `json:"text"` // the command as typed, for the undo reply
+}
+
+// Units chooses how replies show lengths.
+type Units string
+
+// Unit systems for replies.
+const (
+	Metric   Units = "metric"
+	Imperial Units = "imperial"
+)
+
+// Team holds the team-wide settings.
+type Team struct {
+	Name  string `json:"name,omitempty"`
+	Units Units  `json:"units,omitempty"` // "" means metric
+	TZ    string `json:"tz,omitempty"`    // IANA zone name; "" means UTC
+
+	HasLocation bool    `json:"has_location,omitempty"` // venue set: use local gravity
+	LatDeg      float64 `json:"lat_deg,omitempty"`
+	AltM        float64 `json:"alt_m,omitempty"`
+
+	DigestOff     bool         `json:"digest_off,omitempty"`
+	DigestDay     time.Weekday `json:"digest_day"`    // default Monday, set by the bot
+	DigestMinute  int          `json:"digest_minute"` // minutes after local midnight
+	DigestChannel string       `json:"digest_channel,omitempty"`
+	DigestSet     bool         `json:"digest_set,omitempty"` // day and minute were chosen by a coach
+
+	BackupDir  string `json:"backup_dir,omitempty"`
+	BackupKeep int    `json:"backup_keep,omitempty"`
+}
+
+// Role is what a chat user may do.
+type Role string
+
+// Roles, from most to least allowed. RoleNone is anyone else in the workspace.
+const (
+	RoleHeadCoach Role = "head"
+	RoleCoach     Role = "coach"
+	RoleAthlete   Role = "athlete"
+	RoleNone      Role = ""
+)
+
+// User is a chat user the bot knows.
+type User struct {
+	ID        string `json:"id"`
+	Name      string `json:"name,omitempty"` // display name, cached
+	Role      Role   `json:"role,omitempty"`
+	AthleteID uint64 `json:"athlete,omitempty"` // linked athlete ("me"), 0 none
+}
+
+// AuditEntry records one change: who, when, what, and the record before and after (JSON, may be empty).
+type AuditEntry struct {
+	Time    time.Time `json:"time"`
+	Actor   string    `json:"actor"`
+	Action  string    `json:"action"`
+	Subject string    `json:"subject,omitempty"` // athlete name or setting
+	Before  string    `json:"before,omitempty"`
+	After   string    `json:"after,omitempty"`
+}
+
+// ErrStop, returned from an iteration callback, ends the iteration early;
+// the iterating function then returns nil.
+var ErrStop = stopError{}
+
+type stopError struct{}
+
+func (stopError) Error() string { return "stop iteration" }

@@ -1,0 +1,56 @@
+package units
+
+import (
+	"fmt"
+	"math"
+)
+
+// FeetInches splits metres into whole feet and whole inches, rounding to the
+// nearest inch (6-1 for 1.854 m).
+func FeetInches(m float64) (ft, in int) {
+	total := int(math.Round(m / MetresPerInch))
+	return total / 12, total % 12
+}
+
+// Length formats metres for a reply: "1.78 m" (metric) or "5-10" (imperial,
+// feet-inches to the nearest inch, the trade's own notation).
+func Length(m float64, imperial bool) string {
+	if imperial {
+		ft, in := FeetInches(m)
+		return fmt.Sprintf("%d-%d", ft, in)
+	}
+	return fmt.Sprintf("%.2f m", m)
+}
+
+// Bar formats a bar height compactly for tables: "1.78" or "5-10".
+func Bar(m float64, imperial bool) string {
+	if imperial {
+		ft, in := FeetInches(m)
+		return fmt.Sprintf("%d-%d", ft, in)
+	}
+	return fmt.Sprintf("%.2f", m)
+}
+
+// Small formats a small signed length such as a margin: "+3.0 cm" or "+1.2 in".
+func Small(m float64, imperial bool) string {
+	if imperial {
+		return fmt.Sprintf("%+.1f in", m/MetresPerInch)
+	}
+	return fmt.Sprintf("%+.1f cm", m*100)
+}
+
+// SmallAbs is Small without a sign: "3.0 cm" or "1.2 in".
+func SmallAbs(m float64, imperial bool) string {
+	if imperial {
+		return fmt.Sprintf("%.1f in", math.Abs(m)/MetresPerInch)
+	}
+	return fmt.Sprintf("%.1f cm", math.Abs(m)*100)
+}
+
+// Mass formats kilograms: "63.0 kg" or "139 lb".
+func Mass(kg float64, imperial bool) string {
+	if imperial {
+		return fmt.Sprintf("%.0f lb", kg/KilogramsPerLb)
+	}
+	return fmt.Sprintf("%.1f kg", kg)
+}
