@@ -19,8 +19,8 @@ const (
 	maxStatureM = 2.30
 	minMassKg   = 30
 	maxMassKg   = 150
-	minBarM     = 0.50
-	maxBarM     = 2.60
+	minPBM      = 0.50
+	maxPBM      = 2.60
 	minBodyM    = 0.05 // body depth, midline to underside
 	maxBodyM    = 0.25
 	maxNameLen  = 24
@@ -122,10 +122,10 @@ func runAthleteAdd(c *call) (Reply, error) {
 	}
 	var team record.Team
 	err = c.update(func(tx Tx) error {
-		if _, ok, err := tx.AthleteByName(name); err != nil {
+		if old, ok, err := tx.AthleteByName(name); err != nil {
 			return err
 		} else if ok {
-			return conflictErr("athlete "+name, "there is already an athlete called %s; `athlete %s` shows the profile, or pick another name", name, name)
+			return conflictErr("athlete "+old.Name, "there is already an athlete called %s; `athlete %s` shows the profile, or pick another name", old.Name, old.Name)
 		}
 		if team, err = tx.Team(); err != nil {
 			return err
@@ -190,8 +190,8 @@ func applyProfile(a *record.Athlete, o options, year int, example string) error 
 		}
 	}
 	if v, ok := o.num("pb"); ok {
-		if v < minBarM || v > maxBarM {
-			return usageErr(example, "pb %s is outside %.2f–%.2f m", fmtM(v), minBarM, maxBarM)
+		if v < minPBM || v > maxPBM {
+			return usageErr(example, "pb %s is outside %.2f–%.2f m", fmtM(v), minPBM, maxPBM)
 		}
 		a.PersonalBestM = v
 	}

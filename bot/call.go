@@ -203,7 +203,7 @@ func (c *call) findAthlete(tx Tx, name string) (record.Athlete, error) {
 		names[i] = x.Name
 	}
 	if s, ok := nearest(name, names); ok {
-		return a, notFoundErr("athletes", "no athlete called %q. Did you mean %s?", name, s)
+		return a, notFoundErr(replaceWord(c.req.Text, name, s), "no athlete called %q. Did you mean %s?", name, s)
 	}
 	return a, notFoundErr("athlete add "+name+" height 1.80", "no athlete called %q. `athletes` lists the squad.", name)
 }
@@ -220,3 +220,16 @@ func mentionID(w string) string {
 
 // imperial reports whether replies use feet and inches.
 func imperial(t record.Team) bool { return t.Units == record.Imperial }
+
+// replaceWord swaps the first whole-word occurrence of old in line for new,
+// to turn a typo into a ready-to-send example.
+func replaceWord(line, old, repl string) string {
+	ts := tokenize(line)
+	for i, t := range ts {
+		if t.Raw == old {
+			ts[i].Raw = repl
+			return joinRaw(ts)
+		}
+	}
+	return line
+}

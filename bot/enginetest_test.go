@@ -24,7 +24,7 @@ var testClockStart = time.Date(2026, 11, 25, 10, 0, 0, 0, time.UTC)
 // testEngine is an engine over a temporary bbolt file, with a clock that
 // advances one second per read so every message has its own time.
 type testEngine struct {
-	t   *testing.T
+	t   testing.TB
 	E   *bot.Engine
 	DB  *store.DB
 	now time.Time
@@ -33,7 +33,7 @@ type testEngine struct {
 
 // newTestEngine opens a temporary store; at cleanup it checks the store's
 // invariants and closes it. The operator "U_HEAD" is a head coach.
-func newTestEngine(t *testing.T) *testEngine {
+func newTestEngine(t testing.TB) *testEngine {
 	t.Helper()
 	db, err := store.Open(filepath.Join(t.TempDir(), "clearbot.db"), store.Options{})
 	if err != nil {
@@ -104,7 +104,7 @@ func plain(r bot.Reply) string {
 
 // golden compares text with testdata/replies/NAME.golden (repo-level
 // testdata), rewriting it under -update.
-func golden(t *testing.T, name, got string) {
+func golden(t testing.TB, name, got string) {
 	t.Helper()
 	path := filepath.Join("..", "testdata", "replies", name+".golden")
 	if *update {
@@ -136,7 +136,7 @@ func (te *testEngine) checksum() [32]byte {
 }
 
 // contains fails unless the rendered reply contains every want.
-func contains(t *testing.T, r bot.Reply, wants ...string) {
+func contains(t testing.TB, r bot.Reply, wants ...string) {
 	t.Helper()
 	p := plain(r)
 	for _, w := range wants {

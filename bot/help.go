@@ -70,9 +70,12 @@ func runHelp(c *call) (Reply, error) {
 		}
 		return Reply{}, notFoundErr("help log", "no help topic %q. Topics: %s", want, strings.Join(names[:len(topicOrder)], ", "))
 	}
-	r := Reply{Title: "help " + want, Ephemeral: true, Table: &Table{Header: []string{"command", "what it does", "example"}}}
+	r := Reply{Title: "help " + want, Ephemeral: true}
 	for _, cmd := range picked {
-		r.Table.Rows = append(r.Table.Rows, []string{cmd.usage, cmd.summary, cmd.example})
+		r.Lines = append(r.Lines, "`"+cmd.usage+"`: "+cmd.summary+". e.g. `"+cmd.example+"`")
+	}
+	if want == "log" || want == "calc" {
+		r.Lines = append(r.Lines, "Lengths: 1.78, 1.78m, 178cm, 5-10 or 5'10\"; speeds in m/s; angles in degrees.")
 	}
 	return r, nil
 }

@@ -12,6 +12,7 @@ import (
 	"github.com/clearbot-team/clearbot/bot"
 	"github.com/clearbot-team/clearbot/internal/botstore"
 	"github.com/clearbot-team/clearbot/internal/console"
+	"github.com/clearbot-team/clearbot/internal/control"
 	"github.com/clearbot-team/clearbot/internal/demo"
 	"github.com/clearbot-team/clearbot/store"
 )
@@ -94,6 +95,14 @@ func runBot(ctx context.Context, cfg config, io stdio) error {
 		return err
 	}
 	defer a.Close()
+	ctl, err := control.Listen(a.db.Path(), a.db, a.log)
+	if err != nil {
+		// Without the socket, `clearbot backup` cannot reach this bot; the
+		// bot itself works, so say so and go on.
+		a.log.Warn("hot backups from the command line are unavailable", "err", err)
+	} else {
+		defer ctl.Close()
+	}
 	if cfg.slack() {
 		return a.runSlack(ctx)
 	}
@@ -143,20 +152,31 @@ func runBackup(ctx context.Context, cfg config, io stdio) error {
 	if len(cfg.SubArgs) != 1 {
 		return errors.New("usage: clearbot backup [--data PATH] FILE")
 	}
-	db, err := store.Open(cfg.DataPath, store.Options{ReadOnly: true, Timeout: cfg.LockWait})
-	if err != nil {
-		return err
+	dest := cfg.SubArgs[0]
+	n, err := control.Backup(ctx, cfg.DataPath, dest)
+	how := "by the running bot"
+	if errors.Is(err, control.ErrNoServer) {
+		how = "directly (no bot running)"
+		n, err = backupDirect(cfg, dest)
 	}
-	defer db.Close()
-	n, err := db.BackupToFile(cfg.SubArgs[0])
 	if err != nil {
 		return err
 	}
 	if err := store.Check(cfg.SubArgs[0]); err != nil {
 		return fmt.Errorf("backup written but fails its check: %w", err)
 	}
-	fmt.Fprintf(io.Out, "backup of %s written to %s (%d bytes), consistency check passed\n", cfg.DataPath, cfg.SubArgs[0], n)
-	return ctx.Err()
+	fmt.Fprintf(io.Out, "backup of %s written %s to %s (%d bytes); consistency check passed\n", cfg.DataPath, how, dest, n)
+	return nil
+}
+
+// backupDirect copies a data file that no bot holds open.
+func backupDirect(cfg config, dest string) (int64, error) {
+	db, err := store.Open(cfg.DataPath, store.Options{ReadOnly: true, Timeout: cfg.LockWait})
+	if err != nil {
+		return 0, err
+	}
+	defer db.Close()
+	return db.BackupToFile(dest)
 }
 
 // runRestore puts a checked backup in place of the data file.

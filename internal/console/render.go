@@ -30,7 +30,7 @@ func Render(w io.Writer, r bot.Reply) error {
 	}
 	width := 0
 	for _, f := range r.Fields {
-		width = max(width, utf8.RuneCountInString(f.Label))
+		width = max(width, utf8.RuneCountInString(f.Label)+1)
 	}
 	for _, f := range r.Fields {
 		fmt.Fprintf(&b, "  %-*s  %s\n", width, f.Label+":", f.Value)

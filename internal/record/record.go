@@ -4,7 +4,10 @@
 // kilograms, metres per second); storage, parsing and display live elsewhere.
 package record
 
-import "time"
+import (
+	"fmt"
+	"time"
+)
 
 // Sex selects the body-segment tables of the mechanics model.
 type Sex string
@@ -59,6 +62,23 @@ func (o Outcome) String() string { return string(rune(o)) }
 // Valid reports whether o is one of the three outcomes.
 func (o Outcome) Valid() bool { return o == Cleared || o == Failed || o == Passed }
 
+// MarshalText writes the notation letter, so stored records read "o", "x", "-".
+func (o Outcome) MarshalText() ([]byte, error) {
+	if !o.Valid() {
+		return nil, fmt.Errorf("record: invalid outcome %d", byte(o))
+	}
+	return []byte{byte(o)}, nil
+}
+
+// UnmarshalText reads a notation letter.
+func (o *Outcome) UnmarshalText(b []byte) error {
+	if len(b) != 1 || !Outcome(b[0]).Valid() {
+		return fmt.Errorf("record: invalid outcome %q", b)
+	}
+	*o = Outcome(b[0])
+	return nil
+}
+
 // Attempt is one jump at one bar height. Optional measurements are zero when
 // not given (none of them can truly be zero); the coach's margin has its own
 // flag because zero and negative margins are real.
@@ -89,9 +109,9 @@ type Attempt struct {
 
 // Key identifies an attempt in the store: athlete, time, sequence.
 type Key struct {
-	AthleteID uint64
-	Time      time.Time
-	Seq       uint32
+	AthleteID uint64    `json:"athlete"`
+	Time      time.Time `json:"time"`
+	Seq       uint32    `json:"seq"`
 }
 
 // Key returns the attempt's store key.

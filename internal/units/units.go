@@ -34,8 +34,10 @@ func (e *Error) Error() string { return fmt.Sprintf("%q: %s", e.Word, e.Reason) 
 //
 //	1.78  1.78m  178cm  1780mm  5-10  5'10"  5'10  5ft10  5ft10in  70in  6ft
 //
-// A bare number is metres when below 3 and centimetres from 100 up (a phone
-// user typing "178" means centimetres); values between are ambiguous and refused.
+// A bare number is metres below 100 and centimetres from 100 to under 300
+// (a phone user typing "178" means centimetres); larger bare numbers are
+// refused. Callers check the plausible range, so "9" reads as 9 m and is
+// then refused as out of range with the range shown.
 // A comma decimal separator ("1,78") is accepted.
 func ParseLength(word string) (float64, error) {
 	s := strings.ToLower(strings.TrimSpace(word))
@@ -67,9 +69,9 @@ func ParseLength(word string) (float64, error) {
 		return 0, &Error{word, "not a length"}
 	}
 	switch {
-	case v < 3:
+	case v < 100:
 		return v, nil
-	case v >= 100 && v < 300:
+	case v < 300:
 		return v / 100, nil
 	default:
 		return 0, &Error{word, "give a unit, e.g. 1.78m or 178cm"}

@@ -31,7 +31,7 @@ func TestParseLength(t *testing.T) {
 		{"6-1", 1.8542}, {"6'1\"", 1.8542}, {"6'1", 1.8542}, {"6ft1", 1.8542}, {"6ft1in", 1.8542}, {"6’1”", 1.8542},
 		// 5 ft 10 in = 70 in = 1.778 m.
 		{"5-10", 1.778}, {"5'10\"", 1.778}, {"70in", 1.778}, {`70"`, 1.778},
-		{"6ft", 1.8288}, {"6'", 1.8288}, {"5-10.5", 1.7907},
+		{"9", 9}, {"6ft", 1.8288}, {"6'", 1.8288}, {"5-10.5", 1.7907},
 	}
 	for _, tt := range tests {
 		got, err := ParseLength(tt.in)
@@ -46,7 +46,7 @@ func TestParseLength(t *testing.T) {
 }
 
 func TestParseLengthRejects(t *testing.T) {
-	for _, in := range []string{"", "abc", "12", "5-13", "x'3", "NaN", "inf", "1e400", "0x10", "--3", "5-", "1.7.8"} {
+	for _, in := range []string{"", "abc", "300", "5-13", "x'3", "NaN", "inf", "1e400", "0x10", "--3", "5-", "1.7.8"} {
 		if v, err := ParseLength(in); err == nil {
 			t.Errorf("ParseLength(%q) = %v, want an error", in, v)
 		}

@@ -1,0 +1,151 @@
+package store
+
+import (
+	"encoding/binary"
+	"fmt"
+	"slices"
+	"strings"
+
+	bolt "go.etcd.io/bbolt"
+)
+
+// SchemaVersion is the layout this code reads and writes. Version 0 is a
+// file with no version recorded (a new, empty file).
+//
+// Version 1 layout, one top-level bucket each (keys and values):
+//
+//	meta      "schema" -> uint64 big-endian version
+//	team      "settings" -> JSON record.Team
+//	athletes  uint64 BE id -> JSON record.Athlete; bucket sequence = last id given
+//	names     folded name (see foldName) -> uint64 BE id
+//	attempts  id(8) + UnixNano(8) + seq(4), all BE -> JSON record.Attempt
+//	lines     loggedBy + 0x00 + UnixNano(8) + seq(4) -> JSON record.Line
+//	users     chat user id -> JSON record.User
+//	seen      message or event id -> UnixNano(8) BE
+//	audit     UnixNano(8) + bucket sequence(8), BE -> JSON record.AuditEntry
+//	digests   ISO week "2026-W49" -> UnixNano(8) BE
+const SchemaVersion uint64 = 1
+
+// Bucket names.
+const (
+	bucketMeta     = "meta"
+	bucketTeam     = "team"
+	bucketAthletes = "athletes"
+	bucketNames    = "names"
+	bucketAttempts = "attempts"
+	bucketLines    = "lines"
+	bucketUsers    = "users"
+	bucketSeen     = "seen"
+	bucketAudit    = "audit"
+	bucketDigests  = "digests"
+)
+
+// Keys inside the meta and team buckets.
+const (
+	keySchema   = "schema"
+	keySettings = "settings"
+)
+
+// allBuckets lists every bucket of the current layout.
+func allBuckets() []string {
+	return []string{bucketMeta, bucketTeam, bucketAthletes, bucketNames, bucketAttempts,
+		bucketLines, bucketUsers, bucketSeen, bucketAudit, bucketDigests}
+}
+
+// migration brings a file from version `from` to from+1. It runs inside the
+// single transaction that Open uses for all pending steps, so a failing step
+// leaves the file as it was.
+type migration struct {
+	name string
+	run  func(tx *bolt.Tx) error
+}
+
+// migrations returns the steps keyed by the version they start from.
+func migrations() map[uint64]migration {
+	return map[uint64]migration{
+		0: {name: "create the version 1 buckets", run: migrateCreateV1},
+	}
+}
+
+// migrateCreateV1 turns a file without a schema version into version 1. Only
+// an empty file qualifies: a bbolt file holding other buckets belongs to
+// some other program and is refused rather than stamped as ours.
+func migrateCreateV1(tx *bolt.Tx) error {
+	known := allBuckets()
+	var foreign []string
+	if err := tx.ForEach(func(name []byte, _ *bolt.Bucket) error {
+		if !slices.Contains(known, string(name)) {
+			foreign = append(foreign, string(name))
+		}
+		return nil
+	}); err != nil {
+		return err
+	}
+	if len(foreign) > 0 {
+		return fmt.Errorf("file has no schema version but holds buckets clearbot does not use (%s): not a clearbot data file", strings.Join(foreign, ", "))
+	}
+	for _, name := range known {
+		if _, err := tx.CreateBucketIfNotExists([]byte(name)); err != nil {
+			return fmt.Errorf("create bucket %s: %w", name, err)
+		}
+	}
+	return nil
+}
+
+// readSchema returns the version recorded in tx's meta bucket, 0 if none.
+func readSchema(tx *bolt.Tx) (uint64, error) {
+	meta := tx.Bucket([]byte(bucketMeta))
+	if meta == nil {
+		return 0, nil
+	}
+	v := meta.Get([]byte(keySchema))
+	if v == nil {
+		return 0, nil
+	}
+	if len(v) != 8 {
+		return 0, fmt.Errorf("schema version is %d bytes, want 8", len(v))
+	}
+	return binary.BigEndian.Uint64(v), nil
+}
+
+// prepareSchema checks the file's version and, for a read-write open, runs
+// the pending migrations from ms up to target in one transaction. A file
+// already at target is not written to.
+func (db *DB) prepareSchema(ms map[uint64]migration, target uint64) error {
+	var have uint64
+	if err := db.bolt.View(func(tx *bolt.Tx) error {
+		v, err := readSchema(tx)
+		have = v
+		return err
+	}); err != nil {
+		return fmt.Errorf("store: open %s: read schema version: %w", db.path, err)
+	}
+	switch {
+	case have > target:
+		return fmt.Errorf("store: open %s: schema version %d, this clearbot knows up to %d; upgrade clearbot: %w", db.path, have, target, ErrSchemaNewer)
+	case have == target:
+		return nil
+	case db.readOnly:
+		return fmt.Errorf("store: open %s read-only: schema version %d needs migrating to %d; open it read-write once: %w", db.path, have, target, ErrSchemaOlder)
+	}
+	err := db.bolt.Update(func(tx *bolt.Tx) error {
+		for v := have; v < target; v++ {
+			m, ok := ms[v]
+			if !ok {
+				return fmt.Errorf("no migration from schema version %d", v)
+			}
+			if err := m.run(tx); err != nil {
+				return fmt.Errorf("migrate %d to %d (%s): %w", v, v+1, m.name, err)
+			}
+		}
+		meta, err := tx.CreateBucketIfNotExists([]byte(bucketMeta))
+		if err != nil {
+			return fmt.Errorf("create bucket %s: %w", bucketMeta, err)
+		}
+		return meta.Put([]byte(keySchema), binary.BigEndian.AppendUint64(nil, target))
+	})
+	if err != nil {
+		return fmt.Errorf("store: open %s: %w", db.path, err)
+	}
+	return nil
+}

@@ -1,0 +1,251 @@
+// Package store keeps clearbot's records in one bbolt data file: team
+// settings, athlete profiles with a case-insensitive name index, jump
+// attempts keyed so that one athlete's time window is a single range scan,
+// logged lines for undo, chat users, seen message ids, the append-only audit
+// trail and digest bookkeeping. It owns the file's layout, the schema version
+// and its migrations, consistency checks, hot backups and restores.
+//
+// It is the only package that imports bbolt. Callers run each command as one
+// transaction through DB.View, DB.Update or DB.Batch and read and write
+// through the methods of Tx.
+//
+// The data file holds personal data (names, body measures, birth years of
+// athletes who may be minors): it is created readable by its owner only
+// (mode 0600, directory 0700), and backups get the same mode.
+package store
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"runtime/debug"
+	"time"
+
+	bolt "go.etcd.io/bbolt"
+	bolterrors "go.etcd.io/bbolt/errors"
+)
+
+// DefaultTimeout is how long Open waits for the data file's lock when
+// Options.Timeout is zero.
+const DefaultTimeout = time.Second
+
+// DefaultInitialMmapSize is the memory map reserved at open when
+// Options.InitialMmapSize is zero. While the data fits in it, a long read
+// transaction (a hot backup) never blocks a writer: bbolt must remap to
+// grow past the map, and a remap waits for open read transactions. It is
+// address space, not memory or disk: on Linux the file grows only with its
+// data.
+const DefaultInitialMmapSize = 64 << 20
+
+// File and directory modes for data files and backups: owner only.
+const (
+	fileMode = 0o600
+	dirMode  = 0o700
+)
+
+// Options tune Open. The zero value is a read-write open that waits
+// DefaultTimeout for the lock and uses bbolt's batch defaults.
+type Options struct {
+	// Timeout is how long to wait for the file lock held by another
+	// process before giving up with ErrLocked; 0 means DefaultTimeout.
+	Timeout time.Duration
+	// ReadOnly opens an existing file with a shared lock for tools that
+	// only read (backup, check, export). Update and Batch then fail, and
+	// the file must already carry the current schema version.
+	ReadOnly bool
+	// MaxBatchSize is the most calls Batch combines into one transaction;
+	// 0 keeps bbolt's default (1000).
+	MaxBatchSize int
+	// MaxBatchDelay is the longest Batch waits to fill a batch before it
+	// commits; 0 keeps bbolt's default (10 ms).
+	MaxBatchDelay time.Duration
+	// InitialMmapSize is the memory map reserved at open, in bytes; 0 means
+	// DefaultInitialMmapSize. (On Windows bbolt grows the file to it.)
+	InitialMmapSize int
+}
+
+// ErrLocked is matched (errors.Is) by the error Open returns when another
+// process holds the data file; the same error also matches bbolt's
+// errors.ErrTimeout.
+var ErrLocked = errors.New("data file is in use by another clearbot process")
+
+// ErrSchemaNewer is matched by the error Open returns for a data file written
+// by a newer clearbot: this code does not know its layout and refuses it.
+var ErrSchemaNewer = errors.New("data file schema is newer than this clearbot")
+
+// ErrSchemaOlder is matched by the error a read-only Open returns for a file
+// that needs a migration, which only a read-write Open can run.
+var ErrSchemaOlder = errors.New("data file schema is older than this clearbot")
+
+// LockedError reports a data file locked by another process. It matches
+// both ErrLocked and bbolt's errors.ErrTimeout.
+type LockedError struct {
+	Path   string
+	Waited time.Duration // the lock timeout that ran out
+	err    error
+}
+
+// Error names the file and how long Open waited.
+func (e *LockedError) Error() string {
+	return fmt.Sprintf("store: data file %s is in use by another clearbot process (lock not released within %s); stop that process or use another file", e.Path, e.Waited)
+}
+
+// Unwrap returns ErrLocked and the bbolt timeout it came from.
+func (e *LockedError) Unwrap() []error { return []error{ErrLocked, e.err} }
+
+// DB is an open data file. Its methods are safe for concurrent use.
+type DB struct {
+	bolt     *bolt.DB
+	path     string
+	readOnly bool
+}
+
+// Open opens the data file at path, creating it (mode 0600, parent
+// directories 0700) unless opts.ReadOnly. A read-write open brings the file
+// to SchemaVersion by running the pending migrations in one transaction and
+// refuses a file whose schema is newer than this code (ErrSchemaNewer). If
+// another process holds the file, Open gives up after opts.Timeout with a
+// *LockedError (errors.Is(err, ErrLocked)).
+func Open(path string, opts Options) (*DB, error) {
+	return openWith(path, opts, migrations(), SchemaVersion)
+}
+
+// openWith is Open with the migration set and target version as
+// parameters, so tests can exercise the migration machinery.
+func openWith(path string, opts Options, ms map[uint64]migration, target uint64) (_ *DB, err error) {
+	// A damaged file can fault inside bbolt's Open (a freelist page past a
+	// truncated end): report it instead of crashing the process.
+	defer catchFault(&err, "store: open "+path, debug.SetPanicOnFault(true))
+	if path == "" {
+		return nil, errors.New("store: open: empty data file path")
+	}
+	if opts.Timeout < 0 || opts.MaxBatchSize < 0 || opts.MaxBatchDelay < 0 || opts.InitialMmapSize < 0 {
+		return nil, fmt.Errorf("store: open %s: negative timeout, batch size, batch delay or map size", path)
+	}
+	mmapSize := opts.InitialMmapSize
+	if mmapSize == 0 {
+		mmapSize = DefaultInitialMmapSize
+	}
+	timeout := opts.Timeout
+	if timeout == 0 {
+		timeout = DefaultTimeout
+	}
+	if !opts.ReadOnly {
+		if err := os.MkdirAll(filepath.Dir(path), dirMode); err != nil {
+			return nil, fmt.Errorf("store: open %s: create directory: %w", path, err)
+		}
+	}
+	bdb, err := bolt.Open(path, fileMode, &bolt.Options{Timeout: timeout, ReadOnly: opts.ReadOnly, InitialMmapSize: mmapSize})
+	if errors.Is(err, bolterrors.ErrTimeout) {
+		return nil, &LockedError{Path: path, Waited: timeout, err: err}
+	}
+	if err != nil {
+		return nil, fmt.Errorf("store: open %s: %w", path, err)
+	}
+	if opts.MaxBatchSize > 0 {
+		bdb.MaxBatchSize = opts.MaxBatchSize
+	}
+	if opts.MaxBatchDelay > 0 {
+		bdb.MaxBatchDelay = opts.MaxBatchDelay
+	}
+	db := &DB{bolt: bdb, path: path, readOnly: opts.ReadOnly}
+	if err := db.checkSize(); err != nil {
+		_ = bdb.Close()
+		return nil, err
+	}
+	if err := db.prepareSchema(ms, target); err != nil {
+		_ = bdb.Close()
+		return nil, err
+	}
+	return db, nil
+}
+
+// checkSize refuses a file shorter than its own meta page says: reading the
+// missing pages through the memory map would crash the process.
+func (db *DB) checkSize() error {
+	fi, err := os.Stat(db.path)
+	if err != nil {
+		return fmt.Errorf("store: open %s: %w", db.path, err)
+	}
+	var want int64
+	if err := db.bolt.View(func(tx *bolt.Tx) error { want = tx.Size(); return nil }); err != nil {
+		return fmt.Errorf("store: open %s: %w", db.path, err)
+	}
+	if fi.Size() < want {
+		return fmt.Errorf("store: open %s: file is truncated: %d bytes, its header needs %d: %w", db.path, fi.Size(), want, ErrInconsistent)
+	}
+	return nil
+}
+
+// Path returns the data file's path as given to Open.
+func (db *DB) Path() string { return db.path }
+
+// Close releases the file and its lock.
+func (db *DB) Close() error {
+	if err := db.bolt.Close(); err != nil {
+		return fmt.Errorf("store: close %s: %w", db.path, err)
+	}
+	return nil
+}
+
+// View runs fn in one read-only transaction. It returns ctx's error without
+// starting if ctx is already done, and otherwise fn's error unchanged.
+func (db *DB) View(ctx context.Context, fn func(*Tx) error) error {
+	if err := ctx.Err(); err != nil {
+		return fmt.Errorf("store: view not started: %w", err)
+	}
+	tx, err := db.bolt.Begin(false)
+	if err != nil {
+		return fmt.Errorf("store: begin view: %w", err)
+	}
+	defer func() { _ = tx.Rollback() }()
+	return fn(&Tx{tx: tx})
+}
+
+// Update runs fn in one read-write transaction and commits iff fn returns
+// nil and ctx is still live; otherwise nothing fn wrote is kept. It does not
+// start if ctx is already done. fn's own error is returned unchanged.
+func (db *DB) Update(ctx context.Context, fn func(*Tx) error) error {
+	if err := ctx.Err(); err != nil {
+		return fmt.Errorf("store: update not started: %w", err)
+	}
+	tx, err := db.bolt.Begin(true)
+	if err != nil {
+		return fmt.Errorf("store: begin update: %w", err)
+	}
+	committed := false
+	defer func() {
+		if !committed {
+			_ = tx.Rollback()
+		}
+	}()
+	if err := fn(&Tx{tx: tx}); err != nil {
+		return err
+	}
+	if err := ctx.Err(); err != nil {
+		return fmt.Errorf("store: update rolled back: %w", err)
+	}
+	committed = true
+	if err := tx.Commit(); err != nil {
+		return fmt.Errorf("store: commit: %w", err)
+	}
+	return nil
+}
+
+// Batch runs fn like Update but lets bbolt combine concurrent calls into
+// one transaction (one fsync for many writers), waiting up to
+// Options.MaxBatchDelay for Options.MaxBatchSize calls.
+//
+// fn may run more than once: if any call in a batch fails, bbolt rolls the
+// whole batch back and runs the other calls again, and the failing one solo.
+// fn must therefore be idempotent and keep no effects outside the
+// transaction until Batch has returned nil. Batch does not start if ctx is
+// already done; once queued, the call is not withdrawn.
+func (db *DB) Batch(ctx context.Context, fn func(*Tx) error) error {
+	if err := ctx.Err(); err != nil {
+		return fmt.Errorf("store: batch not started: %w", err)
+	}
+	return db.bolt.Batch(func(tx *bolt.Tx) error { return fn(&Tx{tx: tx}) })
+}
