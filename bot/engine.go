@@ -28,6 +28,8 @@ type Engine struct {
 	headCoaches []string
 	log         *slog.Logger
 	commands    []command
+	names       []commandName
+	firstWords  []string
 }
 
 // New returns an engine over the given store.
@@ -43,6 +45,7 @@ func New(cfg Config) (*Engine, error) {
 		e.log = slog.New(slog.DiscardHandler)
 	}
 	e.commands = allCommands()
+	e.names, e.firstWords = indexNames(e.commands)
 	return e, nil
 }
 
@@ -108,33 +111,45 @@ func internalReply() Reply {
 func (e *Engine) lookup(ts []token) (command, []token, error) {
 	var (
 		best  command
-		found bool
+		bestN int
 	)
-	for _, c := range e.commands {
-		for _, name := range c.names() {
-			words := strings.Fields(name)
-			if len(words) > len(ts) || (found && len(words) <= len(strings.Fields(best.name))) {
-				continue
-			}
-			if matchWords(ts, words) {
-				best, found = c, true
-				best.name = name
-			}
+	for _, n := range e.names {
+		if len(n.words) > len(ts) || len(n.words) <= bestN || !matchWords(ts, n.words) {
+			continue
 		}
+		best, bestN = e.commands[n.cmd], len(n.words)
+		best.name = n.name
 	}
-	if found {
-		return best, ts[len(strings.Fields(best.name)):], nil
+	if bestN > 0 {
+		return best, ts[bestN:], nil
 	}
-	var firsts []string
-	for _, c := range e.commands {
-		for _, name := range c.names() {
-			firsts = append(firsts, strings.Fields(name)[0])
-		}
-	}
-	if s, ok := nearest(ts[0].Lower, firsts); ok {
+	if s, ok := nearest(ts[0].Lower, e.firstWords); ok {
 		return command{}, nil, usageErr("help", "I don't know the command %q. Did you mean %q?", ts[0].Raw, s)
 	}
 	return command{}, nil, usageErr("help", "I don't know the command %q. Type help for the list.", ts[0].Raw)
+}
+
+// commandName is one name (or alias) of a command, split into words once.
+type commandName struct {
+	name  string
+	words []string
+	cmd   int // index into Engine.commands
+}
+
+// indexNames splits every command name and alias into words.
+func indexNames(cs []command) (names []commandName, firsts []string) {
+	seen := map[string]bool{}
+	for i, c := range cs {
+		for _, n := range c.names() {
+			w := strings.Fields(n)
+			names = append(names, commandName{name: n, words: w, cmd: i})
+			if !seen[w[0]] {
+				seen[w[0]] = true
+				firsts = append(firsts, w[0])
+			}
+		}
+	}
+	return names, firsts
 }
 
 func matchWords(ts []token, words []string) bool {

@@ -1,0 +1,201 @@
+package bot
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"github.com/clearbot-team/clearbot/internal/mechanics"
+	"github.com/clearbot-team/clearbot/internal/units"
+)
+
+// comSpecs are the keywords of `com`.
+var comSpecs = []optionSpec{
+	{Key: "for", Kind: kindWord},
+	{Key: "arch", Kind: kindAngle},
+	{Key: "height", Aliases: []string{"stature", "ht"}, Kind: kindLength},
+	{Key: "depth", Kind: kindLength},
+	{Key: "posture", Aliases: []string{"pose"}, Kind: kindWord},
+	{Key: "model", Kind: kindWord},
+	{Key: "sex", Kind: kindWord},
+	{Key: "table", Kind: kindWord},
+}
+
+// comArc is the arc model's answer in the numbers `com` shows.
+type comArc struct {
+	arc    mechanics.Arc
+	depthM float64
+}
+
+func runCOM(c *call) (Reply, error) {
+	const ex = exampleCOM
+	o, err := parseOptions(c.args, comSpecs, ex)
+	if err != nil {
+		return Reply{}, err
+	}
+	if len(o.rest) > 0 {
+		return Reply{}, unknownWords(o.rest, ex, "com takes arch, height, depth, posture, model, sex, table; name an athlete with for NAME")
+	}
+	arch, hasArch, err := checkTypedArch(o, ex)
+	if err != nil {
+		return Reply{}, err
+	}
+	def := "arc"
+	if o.has("posture") || o.has("table") {
+		def = "segments"
+	}
+	model, err := parseCalcModel(o, def, true, ex)
+	if err != nil {
+		return Reply{}, err
+	}
+	if model == "arc" && (o.has("posture") || o.has("table")) {
+		return Reply{}, usageErr("com height 1.80 posture layout", "a posture or a segment table applies to the segment model; add model segments or model both")
+	}
+	posture := mechanics.FlopLayout()
+	if w, ok := o.word("posture"); ok {
+		if posture, err = mechanics.PostureByName(w); err != nil {
+			return Reply{}, usageErr("com height 1.80 posture layout", "posture %q: use one of %s", w, strings.Join(mechanics.PostureNames(), ", "))
+		}
+	}
+	forName, _ := o.word("for")
+	env, err := c.loadCalc(forName, nil)
+	if err != nil {
+		return Reply{}, err
+	}
+	b, err := resolveCalcBody(o, env, ex)
+	if err != nil {
+		return Reply{}, err
+	}
+	imp := env.imp
+	notes := append([]string(nil), b.notes...)
+	b.notes = nil
+
+	var (
+		ar    comArc
+		seg   mechanics.COMResult
+		tname string
+	)
+	if model != "segments" {
+		a := arch
+		if !hasArch {
+			a = defaultArchDeg
+			notes = append(notes, fmt.Sprintf("arch assumed %s° (add arch DEG to set it)", calcNum(a)))
+		}
+		if ar.arc, err = mechanics.NewArc(b.statureM, mechanics.Radians(a)); err != nil {
+			return Reply{}, calcErr(err, ex)
+		}
+		if ar.depthM, err = b.arcDepth(imp); err != nil {
+			return Reply{}, calcErr(err, ex)
+		}
+		notes = append(notes, b.notes...)
+		b.notes = nil
+		notes = append(notes, fmt.Sprintf("arc model: uniform body of length = stature %s bent through %s°", units.Length(b.statureM, imp), calcNum(a)))
+	}
+	if model != "arc" {
+		table, name, tnotes, err := pickSegmentTable(o.words["table"], b.sex, calcAthleteName(env), ex)
+		if err != nil {
+			return Reply{}, err
+		}
+		tname = name
+		notes = append(notes, tnotes...)
+		if hasArch {
+			posture.TrunkArchDeg = arch
+			notes = append(notes, fmt.Sprintf("segment model: arch %s° used as the trunk arch", calcNum(arch)))
+		}
+		if seg, err = mechanics.BodyCOM(b.segmentBody(), posture, table); err != nil {
+			return Reply{}, calcErr(err, ex)
+		}
+		notes = append(notes, fmt.Sprintf("segment model: %s posture, %s table, depths %s", posture.Name, tname, comDepthSource(b)))
+	}
+
+	r := Reply{Title: "Centre of mass" + env.who(), Ephemeral: env.private()}
+	add := func(label, value string) { r.Fields = append(r.Fields, Field{label, value}) }
+	switch model {
+	case "arc":
+		s, d := ar.arc.DropM, ar.depthM
+		if ar.arc.Straight {
+			add("Model", fmt.Sprintf("arc, %s held straight (arch 0°)", units.Length(b.statureM, imp)))
+		} else {
+			add("Model", fmt.Sprintf("arc, %s bent through %s° (radius %s, ends %s apart)", units.Length(b.statureM, imp), calcNum(mechanics.Degrees(ar.arc.ThetaRad)), units.Length(ar.arc.RadiusM, imp), units.Length(ar.arc.ChordM, imp)))
+		}
+		add("C.m. below the apex", calcSmall(s, imp))
+		add("Underside below the apex (d)", units.SmallAbs(d, imp))
+		add("C.m. vs the bar contact", comBarContact(s-d, imp))
+		r.Lines = append(r.Lines, capitalise(comLine(s-d, imp)))
+	case "segments":
+		add("Model", fmt.Sprintf("segments, %s posture, %s, %s", posture.Name, tname, units.Length(b.statureM, imp)))
+		if posture.Name == mechanics.Standing().Name {
+			// Upright, the apex is the top of the head and no bar is under it.
+			add("C.m. below the top of the head", units.Length(seg.DropM, imp))
+			add("C.m. above the floor", fmt.Sprintf("%s = %.3f × stature", units.Length(seg.COMHeightM, imp), seg.COMHeightM/b.statureM))
+			break
+		}
+		add("C.m. below the apex", calcSmall(seg.DropM, imp))
+		add("C.m. along the body", comAlongBody(seg.COM.XM, imp))
+		add("Underside below the apex (d)", units.SmallAbs(seg.UndersideDepthM, imp))
+		add("C.m. vs the bar contact", comBarContact(seg.BelowUndersideM, imp))
+		add("Apex on the", seg.ApexSegment.String())
+		r.Lines = append(r.Lines, capitalise(comLine(seg.BelowUndersideM, imp)))
+	default:
+		arcHead := fmt.Sprintf("arc %s°", calcNum(mechanics.Degrees(ar.arc.ThetaRad)))
+		segHead := fmt.Sprintf("segments (%s)", posture.Name)
+		r.Table = &Table{Header: []string{"", arcHead, segHead}, Rows: [][]string{
+			{"c.m. below the apex", calcSmall(ar.arc.DropM, imp), calcSmall(seg.DropM, imp)},
+			{"underside below the apex (d)", units.SmallAbs(ar.depthM, imp), units.SmallAbs(seg.UndersideDepthM, imp)},
+			{"c.m. below the bar contact", units.Small(ar.arc.DropM-ar.depthM, imp), units.Small(seg.BelowUndersideM, imp)},
+		}}
+		r.Lines = append(r.Lines,
+			"Arc: "+comLine(ar.arc.DropM-ar.depthM, imp),
+			"Segments: "+comLine(seg.BelowUndersideM, imp),
+			fmt.Sprintf("The models differ by %s in the c.m. drop: the arc bends the whole body evenly; the segment model bends the trunk and turns the head and legs at the joints.", units.SmallAbs(ar.arc.DropM-seg.DropM, imp)))
+		add("Segment table", tname)
+	}
+	r.Assumptions = notes
+	return r, nil
+}
+
+// comDepthSource says where the segment model's depths came from.
+func comDepthSource(b calcBody) string {
+	if b.depthM > 0 {
+		return "typical fractions of stature, trunk twice the given depth"
+	}
+	return "typical fractions of stature (add depth D, midline to underside, to set the trunk's)"
+}
+
+// comBarContact describes where the c.m. lies relative to the body's underside
+// at the apex, which is where the bar touches: below (+) or above (−).
+func comBarContact(belowM float64, imp bool) string {
+	if belowM >= 0 {
+		return units.SmallAbs(belowM, imp) + " below the underside"
+	}
+	return units.SmallAbs(belowM, imp) + " above the underside"
+}
+
+// comLine is the plain reading of the c.m. against the bar, starting in
+// lower case so it can follow a label.
+func comLine(belowM float64, imp bool) string {
+	if belowM >= 0 {
+		return fmt.Sprintf("with the apex just touching the bar, the c.m. passes %s below the bar.", units.SmallAbs(belowM, imp))
+	}
+	return fmt.Sprintf("with the apex just touching the bar, the c.m. passes %s above the bar: it must rise that much higher than the bar.", units.SmallAbs(belowM, imp))
+}
+
+// comAlongBody says how far the c.m. lies from the apex along the body.
+func comAlongBody(xM float64, imp bool) string {
+	switch {
+	case math.Abs(xM) < 0.005:
+		return "under the apex"
+	case xM > 0:
+		return units.SmallAbs(xM, imp) + " from the apex towards the feet"
+	default:
+		return units.SmallAbs(xM, imp) + " from the apex towards the head"
+	}
+}
+
+// capitalise upper-cases the first letter of a sentence.
+func capitalise(s string) string {
+	if s == "" {
+		return s
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
+}
