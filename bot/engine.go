@@ -8,6 +8,8 @@ import (
 	"slices"
 	"strings"
 	"time"
+
+	"github.com/clearbot-team/clearbot/internal/record"
 )
 
 // Config is what an Engine needs from its surroundings.
@@ -18,6 +20,9 @@ type Config struct {
 	// says (the first head coaches, from configuration).
 	HeadCoaches []string
 	Logger      *slog.Logger // nil discards
+	// OnTeamChange, if set, is called after a command changed the team
+	// settings (digest schedule, time zone), so the scheduler can follow.
+	OnTeamChange func(record.Team)
 }
 
 // Engine parses and runs commands. It is safe for concurrent use: all state
@@ -27,6 +32,7 @@ type Engine struct {
 	clock       Clock
 	headCoaches []string
 	log         *slog.Logger
+	onTeam      func(record.Team)
 	commands    []command
 	names       []commandName
 	firstWords  []string
@@ -37,7 +43,7 @@ func New(cfg Config) (*Engine, error) {
 	if cfg.Store == nil {
 		return nil, errors.New("bot: no store")
 	}
-	e := &Engine{store: cfg.Store, clock: cfg.Clock, headCoaches: slices.Clone(cfg.HeadCoaches), log: cfg.Logger}
+	e := &Engine{store: cfg.Store, clock: cfg.Clock, headCoaches: slices.Clone(cfg.HeadCoaches), log: cfg.Logger, onTeam: cfg.OnTeamChange}
 	if e.clock == nil {
 		e.clock = ClockFunc(time.Now)
 	}
@@ -159,4 +165,15 @@ func matchWords(ts []token, words []string) bool {
 		}
 	}
 	return true
+}
+
+// Team returns the stored team settings.
+func (e *Engine) Team(ctx context.Context) (record.Team, error) {
+	var t record.Team
+	err := e.store.View(ctx, func(tx Tx) error {
+		var err error
+		t, err = tx.Team()
+		return err
+	})
+	return withDigestDefaults(t), err
 }

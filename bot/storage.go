@@ -70,6 +70,9 @@ type Tx interface {
 	// DigestPosted reports when the digest of an ISO week ("2026-W49") went out.
 	DigestPosted(week string) (at time.Time, ok bool, err error)
 	MarkDigestPosted(week string, at time.Time) error
+	// UnmarkDigestPosted releases a week claimed by MarkDigestPosted whose
+	// post finally failed.
+	UnmarkDigestPosted(week string) error
 }
 
 // Clock tells the time; tests pass a fixed or stepping clock.

@@ -45,6 +45,9 @@ func (c *call) updateTeam(action string, change func(t *record.Team) error) (rec
 		}
 		return c.audit(tx, action, "team", before, after)
 	})
+	if err == nil && c.e.onTeam != nil {
+		c.e.onTeam(withDigestDefaults(after))
+	}
 	return after, err
 }
 

@@ -801,3 +801,17 @@ func (t *Tx) MarkDigestPosted(week string, at time.Time) error {
 	}
 	return nil
 }
+
+// UnmarkDigestPosted forgets that a week's digest went out, so it can be
+// posted again: the bot claims a week before posting and releases the claim
+// when the post finally fails.
+func (t *Tx) UnmarkDigestPosted(week string) error {
+	b, err := t.bucket(bucketDigests)
+	if err == nil {
+		err = b.Delete([]byte(week))
+	}
+	if err != nil {
+		return fmt.Errorf("store: unmark digest %q: %w", week, err)
+	}
+	return nil
+}

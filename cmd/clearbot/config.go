@@ -60,7 +60,7 @@ func parseConfig(args []string, getenv func(string) string, errOut io.Writer) (c
 	fs.BoolVar(&c.Demo, "demo", false, "run on a separate demo file, re-seeded with the invented Harbour Lane squad; never touches --data")
 	fs.StringVar(&c.As, "as", getenv("CLEARBOT_AS"), "terminal: act as this chat user id, with the roles the store gives it (default: the operator, a head coach)")
 	heads := fs.String("head-coach", getenv("CLEARBOT_HEAD_COACH"), "comma-separated chat user ids who are head coaches (env CLEARBOT_HEAD_COACH)")
-	fs.StringVar(&c.FilesDir, "files", envOr(getenv, "CLEARBOT_FILES", filepath.Join(os.TempDir(), "clearbot")), "terminal: folder for charts and exports")
+	fs.StringVar(&c.FilesDir, "files", envOr(getenv, "CLEARBOT_FILES", filepath.Join(os.TempDir(), "clearbot-files")), "terminal: folder for charts and exports")
 	fs.DurationVar(&c.LockWait, "lock-wait", time.Second, "how long to wait for the data file's lock")
 	fs.StringVar(&c.LogLevel, "log", envOr(getenv, "CLEARBOT_LOG", "info"), "log level: debug, info, warn, error")
 	fs.StringVar(&c.HTTPAddr, "http", getenv("CLEARBOT_HTTP"), "Slack over HTTP: listen address, e.g. :8080 (needs SLACK_SIGNING_SECRET)")

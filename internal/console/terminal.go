@@ -114,7 +114,7 @@ func isBlank(s string) bool {
 func (t *Terminal) writeFile(f bot.File) (string, error) {
 	dir := t.FilesDir
 	if dir == "" {
-		dir = filepath.Join(os.TempDir(), "clearbot")
+		dir = filepath.Join(os.TempDir(), "clearbot-files")
 	}
 	if err := os.MkdirAll(dir, 0o700); err != nil {
 		return "", err

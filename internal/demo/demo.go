@@ -30,19 +30,18 @@ type athlete struct {
 	group                string
 	private              bool
 	startM, gainMPerWeek float64 // practice bar at week 0 and weekly progress
-	vzMS                 float64 // typical take-off vertical velocity
 	skipWeeks            []int   // weeks with no jumps (injury, exams)
 }
 
 // squad is the invented Harbour Lane squad.
 var squad = []athlete{
-	{name: "Mira", sex: "f", leg: "left", statureM: 1.78, massKg: 63, pb: 1.81, born: 2001, group: "seniors", startM: 1.66, gainMPerWeek: 0.012, vzMS: 4.05},
-	{name: "Kai", sex: "m", leg: "left", statureM: 1.86, massKg: 74, pb: 2.01, born: 1999, group: "seniors", startM: 1.88, gainMPerWeek: 0.008, vzMS: 4.45},
-	{name: "Cole", sex: "m", leg: "right", statureM: 1.854, massKg: 71, pb: 1.95, born: 2003, group: "seniors", startM: 1.84, gainMPerWeek: 0.0, vzMS: 4.3},
-	{name: "Noor", sex: "f", leg: "right", statureM: 1.74, massKg: 58, pb: 1.72, born: 2004, group: "seniors", startM: 1.62, gainMPerWeek: 0.006, vzMS: 3.95, skipWeeks: []int{7}},
-	{name: "Tomas", sex: "m", leg: "left", statureM: 1.91, massKg: 80, pb: 2.05, born: 1997, group: "seniors", startM: 1.98, gainMPerWeek: -0.006, vzMS: 4.5, skipWeeks: []int{2, 3}},
-	{name: "Ines", sex: "f", leg: "left", statureM: 1.69, massKg: 54, pb: 1.64, born: 2011, group: "juniors", private: true, startM: 1.50, gainMPerWeek: 0.015, vzMS: 3.7},
-	{name: "Ren", sex: "m", leg: "right", statureM: 1.80, massKg: 66, pb: 1.85, born: 2010, group: "juniors", startM: 1.70, gainMPerWeek: 0.01, vzMS: 4.1},
+	{name: "Mira", sex: "f", leg: "left", statureM: 1.78, massKg: 63, pb: 1.81, born: 2001, group: "seniors", startM: 1.66, gainMPerWeek: 0.012},
+	{name: "Kai", sex: "m", leg: "left", statureM: 1.86, massKg: 74, pb: 2.01, born: 1999, group: "seniors", startM: 1.88, gainMPerWeek: 0.008},
+	{name: "Cole", sex: "m", leg: "right", statureM: 1.854, massKg: 71, pb: 1.95, born: 2003, group: "seniors", startM: 1.84, gainMPerWeek: 0.0},
+	{name: "Noor", sex: "f", leg: "right", statureM: 1.74, massKg: 58, pb: 1.72, born: 2004, group: "seniors", startM: 1.62, gainMPerWeek: 0.006, skipWeeks: []int{7}},
+	{name: "Tomas", sex: "m", leg: "left", statureM: 1.91, massKg: 80, pb: 2.05, born: 1997, group: "seniors", startM: 1.98, gainMPerWeek: -0.006, skipWeeks: []int{2, 3}},
+	{name: "Ines", sex: "f", leg: "left", statureM: 1.69, massKg: 54, pb: 1.64, born: 2011, group: "juniors", private: true, startM: 1.50, gainMPerWeek: 0.015},
+	{name: "Ren", sex: "m", leg: "right", statureM: 1.80, massKg: 66, pb: 1.85, born: 2010, group: "juniors", startM: 1.70, gainMPerWeek: 0.01},
 }
 
 // Weeks is how many weeks of invented logs the demo carries.
@@ -130,7 +129,9 @@ func session(rng *rand.Rand, a athlete, week int, meet bool) string {
 		parts = append(parts, "meet")
 	}
 	if lastClear > 0 {
-		vz := a.vzMS + rng.NormFloat64()*0.08
+		// The vertical take-off velocity that lifts a take-off c.m. of
+		// 0.70 × stature to the athlete's level of the day: vz = √(2g·rise).
+		vz := math.Sqrt(2*9.81*(level+0.02-0.70*a.statureM)) + rng.NormFloat64()*0.06
 		marginCM := math.Round((level-lastClear)*100 + rng.NormFloat64()*2)
 		parts = append(parts, fmt.Sprintf("by %.0fcm vz %.2f takeoff %.2f", marginCM, vz, 0.9+rng.Float64()*0.4))
 	}
