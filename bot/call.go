@@ -64,6 +64,14 @@ func roleName(r record.Role) string {
 	}
 }
 
+// withArticle puts "a" or "an" before a role name.
+func withArticle(s string) string {
+	if s != "" && strings.ContainsRune("aeiou", rune(s[0])) {
+		return "an " + s
+	}
+	return "a " + s
+}
+
 // rank orders roles: a higher rank may do everything a lower one may.
 func rank(r record.Role) int {
 	switch r {
@@ -92,8 +100,8 @@ func (c *call) allowed(a access) error {
 	if rank(c.user.Role) >= rank(need) {
 		return nil
 	}
-	return forbiddenErr("%q needs the role %s; you are a %s. A head coach can grant roles with `role coach @user` or `role athlete @user`.",
-		c.cmd.name, roleName(need), roleName(c.user.Role))
+	return forbiddenErr("whoami", "%q needs the role %s; you are %s. A head coach can grant roles with `role coach @user` or `role athlete @user`.",
+		c.cmd.name, roleName(need), withArticle(roleName(c.user.Role)))
 }
 
 // mayActFor checks that the speaker may log for or read an athlete: coaches
@@ -105,8 +113,8 @@ func (c *call) mayActFor(a record.Athlete) error {
 	if c.user.Role == record.RoleAthlete && c.user.AthleteID == a.ID && a.ID != 0 {
 		return nil
 	}
-	return forbiddenErr("only %s themself or a coach may do that; you are a %s. A head coach can link you with `athlete link NAME @you`.",
-		a.Name, roleName(c.user.Role))
+	return forbiddenErr("history me", "only %s themself or a coach may do that; you are %s. A head coach can link you with `athlete link NAME @you`.",
+		a.Name, withArticle(roleName(c.user.Role)))
 }
 
 // view runs fn in a read-only transaction.

@@ -65,7 +65,7 @@ func (te *testEngine) as(user, text string) bot.Reply {
 	te.seq++
 	te.advance(time.Second)
 	return te.E.Handle(context.Background(), bot.Request{
-		UserID: user, UserName: user, Text: text, Time: te.now, MessageID: "m" + itoa(te.seq),
+		UserID: user, UserName: user, Text: text, Time: te.now, MessageID: "m" + itoa(te.seq), Local: true,
 	})
 }
 

@@ -28,7 +28,8 @@ func conflictErr(example, format string, args ...any) *UserError {
 	return &UserError{Kind: KindConflict, Msg: fmt.Sprintf(format, args...), Example: example}
 }
 
-// forbiddenErr reports a command the speaker's role does not allow.
-func forbiddenErr(format string, args ...any) *UserError {
-	return &UserError{Kind: KindForbidden, Msg: fmt.Sprintf(format, args...)}
+// forbiddenErr reports a command the speaker's role does not allow; the
+// example is something the speaker may do instead.
+func forbiddenErr(example, format string, args ...any) *UserError {
+	return &UserError{Kind: KindForbidden, Msg: fmt.Sprintf(format, args...), Example: example}
 }

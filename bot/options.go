@@ -3,6 +3,7 @@ package bot
 import (
 	"errors"
 	"fmt"
+	"strconv"
 	"strings"
 
 	"github.com/clearbot-team/clearbot/internal/units"
@@ -128,7 +129,7 @@ func (o options) set(spec optionSpec, val string) error {
 	case kindMass:
 		v, err = units.ParseMass(val)
 	case kindNumber:
-		_, err = fmt.Sscanf(val, "%g", &v)
+		v, err = strconv.ParseFloat(strings.ReplaceAll(val, ",", "."), 64)
 		if err == nil && (v != v || v > 1e12 || v < -1e12) {
 			err = fmt.Errorf("not a number")
 		}

@@ -11,4 +11,7 @@ type Request struct {
 	Text      string    // the command, without any mention of the bot
 	Time      time.Time // when the message was sent; zero means now
 	MessageID string    // unique per delivered message; a repeat is handled once
+	// Local is set by the terminal front end: the speaker sits at the bot's
+	// own computer, so commands that read its files (import csv) may run.
+	Local bool
 }

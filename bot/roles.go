@@ -157,7 +157,7 @@ func runRoles(c *call) (Reply, error) {
 }
 
 func runWhoami(c *call) (Reply, error) {
-	r := Reply{Title: "You are a " + roleName(c.user.Role), Ephemeral: true}
+	r := Reply{Title: "You are " + withArticle(roleName(c.user.Role)), Ephemeral: true}
 	if c.user.ID != "" {
 		r.Fields = append(r.Fields, Field{"Chat user", c.user.ID})
 	}

@@ -52,6 +52,13 @@ func (c *call) updateTeam(action string, change func(t *record.Team) error) (rec
 }
 
 func runTeamShow(c *call) (Reply, error) {
+	if len(c.args) > 0 {
+		subs := []string{"units", "tz", "location", "name", "backup"}
+		if s, ok := nearest(c.args[0].Lower, subs); ok {
+			return Reply{}, usageErr("team "+s+" "+joinRaw(c.args[1:]), "I don't know %q after team. Did you mean team %s?", c.args[0].Raw, s)
+		}
+		return Reply{}, usageErr("team units imperial", "I don't know %q after team; team settings are units, tz, location, name and backup", c.args[0].Raw)
+	}
 	var t record.Team
 	if err := c.view(func(tx Tx) error { var err error; t, err = tx.Team(); return err }); err != nil {
 		return Reply{}, err

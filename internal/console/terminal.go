@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"time"
 
 	"github.com/clearbot-team/clearbot/bot"
@@ -81,12 +82,17 @@ func (t *Terminal) handle(ctx context.Context, line string, n int) error {
 	at := now()
 	req := bot.Request{
 		UserID: t.UserID, UserName: t.UserName, Direct: true, Text: line, Time: at,
-		MessageID: "term-" + strconv.FormatInt(at.UnixNano(), 36) + "-" + strconv.Itoa(n),
+		MessageID: "term-" + strconv.FormatInt(at.UnixNano(), 36) + "-" + strconv.Itoa(n), Local: true,
 	}
 	if isBlank(line) {
 		return nil
 	}
-	r := t.Handler.Handle(ctx, req)
+	var r bot.Reply
+	if imp, ok := t.Handler.(Importer); ok && isImport(line) {
+		r = imp.ImportCSVFile(ctx, req, importPath(line), t.progress)
+	} else {
+		r = t.Handler.Handle(ctx, req)
+	}
 	if err := Render(t.Out, r); err != nil {
 		return fmt.Errorf("write reply: %w", err)
 	}
@@ -99,6 +105,32 @@ func (t *Terminal) handle(ctx context.Context, line string, n int) error {
 		fmt.Fprintf(t.Out, "  written: %s\n", path)
 	}
 	return nil
+}
+
+// Importer is implemented by an engine that can report the progress of a
+// CSV import; the terminal prints it as it goes.
+type Importer interface {
+	ImportCSVFile(ctx context.Context, req bot.Request, path string, progress func(done, total int)) bot.Reply
+}
+
+// isImport reports whether a line is an "import csv PATH" command.
+func isImport(line string) bool {
+	f := strings.Fields(strings.ToLower(line))
+	return len(f) >= 3 && f[0] == "import" && f[1] == "csv"
+}
+
+// importPath is the PATH of an "import csv PATH" line, as typed.
+func importPath(line string) string {
+	f := strings.Fields(line)
+	return strings.Trim(strings.Join(f[2:], " "), `"'`)
+}
+
+// progress prints how far an import has got, for imports of many rows.
+func (t *Terminal) progress(done, total int) {
+	if total < 1000 {
+		return
+	}
+	fmt.Fprintf(t.Out, "  importing: %d of %d rows checked and written\n", done, total)
 }
 
 func isBlank(s string) bool {

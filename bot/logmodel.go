@@ -1,0 +1,75 @@
+package bot
+
+import (
+	"errors"
+	"fmt"
+
+	"github.com/clearbot-team/clearbot/internal/mechanics"
+	"github.com/clearbot-team/clearbot/internal/record"
+)
+
+// logArchDeg is the body arch the log assumes for the model margin when a
+// jump is logged: the arc model's central angle, in degrees. A log line has
+// no posture of its own; `margin ... arch A` computes other postures.
+const logArchDeg = 90
+
+// jumpModel is the model margin of one logged jump, or why there is none.
+type jumpModel struct {
+	ok          bool
+	marginM     float64
+	sigmaM      float64
+	why         string   // when !ok and a measurement was given: the reason, for the reply
+	assumptions []string // defaults the model took
+}
+
+// modelMargin computes the mechanics library's clearance margin for a
+// logged attempt from its c.m. peak (preferred: measured from video) or its
+// vertical take-off velocity, with the athlete's stature, the default arch
+// and body depth, and the venue's gravity (standard gravity without a
+// venue). The c.m. is taken at its peak over the bar: the approach speed
+// is not the take-off's horizontal velocity, so the bar-plane correction is
+// not used.
+//
+//	margin = peak − (bar + d − s)   peak measured, or h0 + vz²/(2g)
+func modelMargin(a record.Attempt, ath record.Athlete, team record.Team) jumpModel {
+	if a.PeakM == 0 && a.VzMS == 0 {
+		return jumpModel{}
+	}
+	if ath.StatureM == 0 {
+		return jumpModel{why: fmt.Sprintf("no model margin: %s's profile has no height (athlete set %s height 1.80)", ath.Name, ath.Name)}
+	}
+	in := mechanics.MarginInput{
+		BarM:     a.BarM,
+		StatureM: ath.StatureM,
+		ArchDeg:  logArchDeg,
+		DepthM:   ath.BodyDepthM,
+		Sigma:    mechanics.DefaultUncertainty(),
+	}
+	if a.PeakM > 0 {
+		in.PeakM = a.PeakM
+	} else {
+		in.VzMS = a.VzMS
+	}
+	var notes []string
+	if team.HasLocation {
+		g, err := mechanics.NormalGravity(team.LatDeg, team.AltM)
+		if err == nil {
+			in.GMS2 = g
+			notes = append(notes, fmt.Sprintf("gravity %.4f m/s² at the team's venue", g))
+		}
+	}
+	res, err := mechanics.Margin(in)
+	if err != nil {
+		var ie *mechanics.InputError
+		if errors.As(err, &ie) {
+			return jumpModel{why: "no model margin: " + ie.Field + " " + ie.Reason}
+		}
+		return jumpModel{why: "no model margin: " + err.Error()}
+	}
+	notes = append(notes, fmt.Sprintf("model margin: arc model, body arch %d°, c.m. peak over the bar", logArchDeg))
+	if a.PeakM > 0 && a.VzMS > 0 {
+		notes = append(notes, "the measured peak was used, not vz")
+	}
+	notes = append(notes, res.Assumptions...)
+	return jumpModel{ok: true, marginM: res.MarginM, sigmaM: res.SigmaM, assumptions: notes}
+}
