@@ -213,7 +213,11 @@ func (c *call) findAthlete(tx Tx, name string) (record.Athlete, error) {
 	if s, ok := nearest(name, names); ok {
 		return a, notFoundErr(replaceWord(c.req.Text, name, s), "no athlete called %q. Did you mean %s?", name, s)
 	}
-	return a, notFoundErr("athlete add "+name+" height 1.80", "no athlete called %q. `athletes` lists the squad.", name)
+	example := "athletes"
+	if checkName(name, "") == nil {
+		example = "athlete add " + name + " height 1.80"
+	}
+	return a, notFoundErr(example, "no athlete called %q. `athletes` lists the squad.", name)
 }
 
 // isMention reports whether a word is a Slack user mention, <@U123> or <@U123|name>.

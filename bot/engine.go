@@ -129,6 +129,21 @@ func (e *Engine) lookup(ts []token) (command, []token, error) {
 	if bestN > 0 {
 		return best, ts[bestN:], nil
 	}
+	var (
+		starts  []string
+		example string
+	)
+	for _, n := range e.names {
+		if n.words[0] == ts[0].Lower {
+			starts = append(starts, n.name)
+			if example == "" {
+				example = e.commands[n.cmd].example
+			}
+		}
+	}
+	if len(starts) > 0 {
+		return command{}, nil, usageErr(example, "%q needs more words: %s", ts[0].Raw, strings.Join(starts, ", "))
+	}
 	if s, ok := nearest(ts[0].Lower, e.firstWords); ok {
 		return command{}, nil, usageErr("help", "I don't know the command %q. Did you mean %q?", ts[0].Raw, s)
 	}

@@ -29,17 +29,27 @@ type testEngine struct {
 	DB  *store.DB
 	now time.Time
 	seq int
+	// idPrefix makes message ids unique across engines that share a file
+	// (a copied template already holds the ids it was built with).
+	idPrefix string
 }
 
 // newTestEngine opens a temporary store; at cleanup it checks the store's
 // invariants and closes it. The operator "U_HEAD" is a head coach.
 func newTestEngine(t testing.TB) *testEngine {
 	t.Helper()
-	db, err := store.Open(filepath.Join(t.TempDir(), "clearbot.db"), store.Options{})
+	return newTestEngineAt(t, filepath.Join(t.TempDir(), "clearbot.db"))
+}
+
+// newTestEngineAt is newTestEngine on a given file, which may already hold
+// data (a copy of a prepared store, say).
+func newTestEngineAt(t testing.TB, path string) *testEngine {
+	t.Helper()
+	db, err := store.Open(path, store.Options{})
 	if err != nil {
 		t.Fatalf("open store: %v", err)
 	}
-	te := &testEngine{t: t, DB: db, now: testClockStart}
+	te := &testEngine{t: t, DB: db, now: testClockStart, idPrefix: "m"}
 	t.Cleanup(func() {
 		if err := db.Check(); err != nil {
 			t.Errorf("store invariants after test: %v", err)
@@ -65,7 +75,7 @@ func (te *testEngine) as(user, text string) bot.Reply {
 	te.seq++
 	te.advance(time.Second)
 	return te.E.Handle(context.Background(), bot.Request{
-		UserID: user, UserName: user, Text: text, Time: te.now, MessageID: "m" + itoa(te.seq), Local: true,
+		UserID: user, UserName: user, Text: text, Time: te.now, MessageID: te.idPrefix + itoa(te.seq), Local: true,
 	})
 }
 

@@ -181,7 +181,7 @@ func runExportCSV(c *call) (Reply, error) {
 			athletes = []record.Athlete{a}
 		} else {
 			if rank(c.user.Role) < rank(record.RoleCoach) {
-				return forbiddenErr("export csv me", "exporting every athlete needs the role coach (yours: %s). Your own jumps: export csv me", roleName(c.user.Role))
+				return forbiddenErr("export csv me", "exporting every athlete needs the role coach (yours: %s); a head coach can grant it. Your own jumps: export csv me", roleName(c.user.Role))
 			}
 			if athletes, err = tx.Athletes(); err != nil {
 				return err

@@ -413,7 +413,11 @@ func parseLogLine(ts []token) (logLine, error) {
 			prev, g := ln.Groups[k-1], ln.Groups[k]
 			switch {
 			case math.Abs(g.BarM-prev.BarM) < logBarTolM:
-				return ln, usageErr(fmt.Sprintf("log %s %s %s meet", ln.Athlete, prev.Word, notationString(append(jumpOutcomes(prev), jumpOutcomes(g)...))),
+				merged := append(jumpOutcomes(prev), jumpOutcomes(g)...)
+				if !validSeries(merged) {
+					merged = jumpOutcomes(prev) // the two cannot be one height's series; offer the first
+				}
+				return ln, usageErr(fmt.Sprintf("log %s %s %s meet", ln.Athlete, strconv.FormatFloat(prev.BarM, 'f', 2, 64), notationString(merged)),
 					"bar %s appears twice in this meet line; write all attempts at one height together after it", g.Word)
 			case g.BarM < prev.BarM:
 				return ln, usageErr(fmt.Sprintf("log %s %s %s %s %s meet", ln.Athlete, g.Word, notationString(jumpOutcomes(g)), prev.Word, notationString(jumpOutcomes(prev))),
@@ -449,7 +453,8 @@ func checkHeightMarks(g barGroup, athlete, example string) error {
 		}
 	}
 	if len(outs) > logMaxTries {
-		return usageErr(fmt.Sprintf("log %s %s xxx %s o", athlete, g.Word, g.Word), "%q at %s is %d attempts; one height takes at most three (xxx). In practice, give the height again for more tries.", typed, g.Word, len(outs))
+		bar := strconv.FormatFloat(g.BarM, 'f', 2, 64)
+		return usageErr(fmt.Sprintf("log %s %s xxx %s o", athlete, bar, bar), "%q at %s is %d attempts; one height takes at most three (xxx). In practice, give the height again for more tries.", typed, g.Word, len(outs))
 	}
 	return nil
 }
@@ -514,4 +519,18 @@ func setMeasure(m *jumpMeasures, kind logWordKind, spec jumpMeasureSpec, keyRaw,
 		m.VzMS = v
 	}
 	return nil
+}
+
+// validSeries reports whether outcomes can be one height's attempts: at
+// most three, and nothing after a clearance or a pass.
+func validSeries(outs []record.Outcome) bool {
+	if len(outs) > logMaxTries {
+		return false
+	}
+	for k, o := range outs {
+		if k < len(outs)-1 && o != record.Failed {
+			return false
+		}
+	}
+	return true
 }

@@ -106,7 +106,10 @@ func session(rng *rand.Rand, a athlete, week int, meet bool) string {
 	}
 	var parts []string
 	parts = append(parts, "log", a.name)
-	var lastClear float64
+	var (
+		lastClear float64
+		clearAt   int // index in parts just after the last cleared height
+	)
 	for h := 0; h < 5; h++ {
 		p := 1 / (1 + math.Exp((bar-level)/0.025)) // chance of a clearance
 		notation := ""
@@ -119,7 +122,7 @@ func session(rng *rand.Rand, a athlete, week int, meet bool) string {
 		}
 		parts = append(parts, fmt.Sprintf("%.2f", bar), notation)
 		if strings.HasSuffix(notation, "o") {
-			lastClear = bar
+			lastClear, clearAt = bar, len(parts)
 		} else {
 			break
 		}
@@ -132,8 +135,11 @@ func session(rng *rand.Rand, a athlete, week int, meet bool) string {
 		// The vertical take-off velocity that lifts a take-off c.m. of
 		// 0.70 × stature to the athlete's level of the day: vz = √(2g·rise).
 		vz := math.Sqrt(2*9.81*(level+0.02-0.70*a.statureM)) + rng.NormFloat64()*0.06
-		marginCM := math.Round((level-lastClear)*100 + rng.NormFloat64()*2)
-		parts = append(parts, fmt.Sprintf("by %.0fcm vz %.2f takeoff %.2f", marginCM, vz, 0.9+rng.Float64()*0.4))
+		marginCM := max(1, math.Round((level-lastClear)*100+rng.NormFloat64()*2)) // a clearance: by at least 1 cm
+		// Measurements go with the jump written just before them: the
+		// last clearance, the one filmed.
+		m := fmt.Sprintf("by %.0fcm vz %.2f takeoff %.2f", marginCM, vz, 0.9+rng.Float64()*0.4)
+		parts = append(parts[:clearAt], append([]string{m}, parts[clearAt:]...)...)
 	}
 	return strings.Join(parts, " ")
 }
