@@ -45,3 +45,17 @@ func allCommands() []command {
 	}
 	return cs
 }
+
+// CommandInfo describes one command for documentation and tests.
+type CommandInfo struct {
+	Name, Usage, Example, Summary, Topic string
+}
+
+// Commands lists the command language in help order.
+func (e *Engine) Commands() []CommandInfo {
+	out := make([]CommandInfo, len(e.commands))
+	for i, c := range e.commands {
+		out[i] = CommandInfo{Name: c.name, Usage: c.usage, Example: c.example, Summary: c.summary, Topic: c.topic}
+	}
+	return out
+}

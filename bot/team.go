@@ -88,19 +88,11 @@ func teamReply(title string, t record.Team) Reply {
 		add("Venue", "not set (standard gravity 9.80665 m/s²)")
 	}
 	if t.BackupDir != "" {
-		add("Backups", fmt.Sprintf("nightly to %s, keeping %d", t.BackupDir, backupKeep(t)))
+		add("Backups", fmt.Sprintf("nightly to %s, keeping %d", t.BackupDir, t.BackupsKept()))
 	} else {
 		add("Backups", "off")
 	}
 	return r
-}
-
-// backupKeep is how many nightly backups are kept (default 7).
-func backupKeep(t record.Team) int {
-	if t.BackupKeep > 0 {
-		return t.BackupKeep
-	}
-	return 7
 }
 
 func runTeamUnits(c *call) (Reply, error) {
@@ -218,7 +210,7 @@ func runTeamBackup(c *call) (Reply, error) {
 	if !strings.HasPrefix(dir, "/") {
 		return Reply{}, usageErr(ex, "the folder %q must be an absolute path", dir)
 	}
-	keep := 7
+	keep := record.DefaultBackupKeep
 	if v, ok := o.num("keep"); ok {
 		if v < 1 || v > 365 || v != float64(int(v)) {
 			return Reply{}, usageErr(ex, "keep %g: give a whole number from 1 to 365", v)

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"log/slog"
 	"os"
-	"path/filepath"
 	"time"
 
 	"github.com/clearbot-team/clearbot/bot"
@@ -34,7 +33,7 @@ func newApp(ctx context.Context, cfg config, io stdio) (*app, error) {
 	a := &app{cfg: cfg, io: io, log: newLogger(cfg.LogLevel, io.Err)}
 	path := cfg.DataPath
 	if cfg.Demo {
-		path = filepath.Join(os.TempDir(), "clearbot-demo", "demo.db")
+		path = cfg.DemoPath
 		if err := os.Remove(path); err != nil && !errors.Is(err, os.ErrNotExist) {
 			return nil, fmt.Errorf("reset demo file: %w", err)
 		}

@@ -23,6 +23,7 @@ type config struct {
 	SubArgs  []string
 	DataPath string
 	Demo     bool
+	DemoPath string // the demo's own file, re-seeded each start
 	As       string
 	Heads    []string
 	FilesDir string
@@ -60,7 +61,7 @@ func parseConfig(args []string, getenv func(string) string, errOut io.Writer) (c
 	fs.BoolVar(&c.Demo, "demo", false, "run on a separate demo file, re-seeded with the invented Harbour Lane squad; never touches --data")
 	fs.StringVar(&c.As, "as", getenv("CLEARBOT_AS"), "terminal: act as this chat user id, with the roles the store gives it (default: the operator, a head coach)")
 	heads := fs.String("head-coach", getenv("CLEARBOT_HEAD_COACH"), "comma-separated chat user ids who are head coaches (env CLEARBOT_HEAD_COACH)")
-	fs.StringVar(&c.FilesDir, "files", envOr(getenv, "CLEARBOT_FILES", filepath.Join(os.TempDir(), "clearbot-files")), "terminal: folder for charts and exports")
+	fs.StringVar(&c.FilesDir, "files", envOr(getenv, "CLEARBOT_FILES", filepath.Join(tempDir(getenv), "clearbot-files")), "terminal: folder for charts and exports")
 	fs.DurationVar(&c.LockWait, "lock-wait", time.Second, "how long to wait for the data file's lock")
 	fs.StringVar(&c.LogLevel, "log", envOr(getenv, "CLEARBOT_LOG", "info"), "log level: debug, info, warn, error")
 	fs.StringVar(&c.HTTPAddr, "http", getenv("CLEARBOT_HTTP"), "Slack over HTTP: listen address, e.g. :8080 (needs SLACK_SIGNING_SECRET)")
@@ -75,6 +76,7 @@ func parseConfig(args []string, getenv func(string) string, errOut io.Writer) (c
 		}
 		return c, err
 	}
+	c.DemoPath = filepath.Join(tempDir(getenv), "clearbot-demo", "demo.db")
 	c.SubArgs = fs.Args()
 	if c.Sub == "" && len(c.SubArgs) > 0 {
 		return c, fmt.Errorf("unexpected argument %q", c.SubArgs[0])
@@ -142,4 +144,12 @@ func defaultDataPath(getenv func(string) string) string {
 		base = filepath.Join(home, ".local", "share")
 	}
 	return filepath.Join(base, "clearbot", "clearbot.db")
+}
+
+// tempDir is $TMPDIR, or the system's temporary folder.
+func tempDir(getenv func(string) string) string {
+	if d := getenv("TMPDIR"); d != "" {
+		return d
+	}
+	return os.TempDir()
 }

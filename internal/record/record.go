@@ -156,6 +156,18 @@ type Team struct {
 	BackupKeep int    `json:"backup_keep,omitempty"`
 }
 
+// DefaultBackupKeep is how many nightly backups are kept when a coach did
+// not say.
+const DefaultBackupKeep = 7
+
+// BackupsKept is how many nightly backups to keep.
+func (t Team) BackupsKept() int {
+	if t.BackupKeep > 0 {
+		return t.BackupKeep
+	}
+	return DefaultBackupKeep
+}
+
 // Role is what a chat user may do.
 type Role string
 
