@@ -59,7 +59,22 @@ func teamLoc(t record.Team) *time.Location {
 	return loc
 }
 
+// noArgs refuses words after a command that takes none, suggesting the
+// nearest of the related commands.
+func noArgs(c *call, related ...string) error {
+	if len(c.args) == 0 {
+		return nil
+	}
+	if s, ok := nearest(c.args[0].Lower, related); ok {
+		return usageErr(strings.TrimSpace(c.cmd.name+" "+s+" "+joinRaw(c.args[1:])), "I don't know %q after %s. Did you mean %s %s?", c.args[0].Raw, c.cmd.name, c.cmd.name, s)
+	}
+	return usageErr(c.cmd.example, "%s takes nothing after it; I don't understand %q", c.cmd.name, c.args[0].Raw)
+}
+
 func runDigestShow(c *call) (Reply, error) {
+	if err := noArgs(c, "now", "week", "schedule", "channel", "off", "on"); err != nil {
+		return Reply{}, err
+	}
 	var (
 		t          record.Team
 		lastWeek   digest.Week
@@ -112,6 +127,9 @@ func runDigestShow(c *call) (Reply, error) {
 }
 
 func runDigestNow(c *call) (Reply, error) {
+	if err := noArgs(c); err != nil {
+		return Reply{}, err
+	}
 	var r Reply
 	err := c.view(func(tx Tx) error {
 		t, err := tx.Team()

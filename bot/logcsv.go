@@ -449,7 +449,7 @@ func runImportCSV(c *call) (Reply, error) {
 		return Reply{}, usageErr("import csv /home/coach/attempts.csv", "give the path of a CSV file on the bot's computer")
 	}
 	if !c.req.Local {
-		return Reply{}, usageErr("export csv", "import csv reads a file on the bot's own computer, so it works only in the bot's terminal (clearbot run there); from chat, send the file to the person who runs the bot")
+		return Reply{}, forbiddenErr("export csv", "import csv reads a file on the bot's own computer, so it works only in the bot's terminal (clearbot run there); from chat, send the file to the person who runs the bot")
 	}
 	path := strings.Trim(joinRaw(c.args), `"'`)
 	return c.importCSVFile(path, nil)

@@ -280,7 +280,7 @@ func TestImportCSVOnlyLocal(t *testing.T) {
 	te := newTestEngine(t)
 	before := te.checksum()
 	r := te.E.Handle(context.Background(), bot.Request{UserID: "U_HEAD", Text: "import csv /etc/passwd", Time: testClockStart, MessageID: "slack-1"})
-	if r.Kind != bot.KindUsage || !strings.Contains(plain(r), "only in the bot's terminal") {
+	if r.Kind != bot.KindForbidden || !strings.Contains(plain(r), "only in the bot's terminal") {
 		t.Fatalf("remote import not refused:\n%s", plain(r))
 	}
 	if te.checksum() != before {

@@ -125,6 +125,9 @@ func countRole(tx Tx, r record.Role) (int, error) {
 }
 
 func runRoles(c *call) (Reply, error) {
+	if err := noArgs(c); err != nil {
+		return Reply{}, err
+	}
 	var (
 		us    []record.User
 		names = map[uint64]string{}
@@ -157,6 +160,9 @@ func runRoles(c *call) (Reply, error) {
 }
 
 func runWhoami(c *call) (Reply, error) {
+	if err := noArgs(c); err != nil {
+		return Reply{}, err
+	}
 	r := Reply{Title: "You are " + withArticle(roleName(c.user.Role)), Ephemeral: true}
 	if c.user.ID != "" {
 		r.Fields = append(r.Fields, Field{"Chat user", c.user.ID})
