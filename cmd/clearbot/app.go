@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"log/slog"
 	"os"
+	"sync/atomic"
 	"time"
 
 	"github.com/clearbot-team/clearbot/bot"
@@ -13,6 +14,7 @@ import (
 	"github.com/clearbot-team/clearbot/internal/console"
 	"github.com/clearbot-team/clearbot/internal/control"
 	"github.com/clearbot-team/clearbot/internal/demo"
+	"github.com/clearbot-team/clearbot/internal/record"
 	"github.com/clearbot-team/clearbot/store"
 )
 
@@ -26,6 +28,9 @@ type app struct {
 	log    *slog.Logger
 	db     *store.DB
 	engine *bot.Engine
+	// onTeam is called when a command changes the team settings; the Slack
+	// mode points it at the scheduler.
+	onTeam atomic.Pointer[func(record.Team)]
 }
 
 // newApp opens the data file (or the re-seeded demo file) and builds the engine.
@@ -47,7 +52,7 @@ func newApp(ctx context.Context, cfg config, io stdio) (*app, error) {
 	if !cfg.slack() || cfg.As != "" {
 		heads = append(heads, operatorID)
 	}
-	a.engine, err = bot.New(bot.Config{Store: botstore.New(db), HeadCoaches: heads, Logger: a.log})
+	a.engine, err = bot.New(bot.Config{Store: botstore.New(db), HeadCoaches: heads, Logger: a.log, OnTeamChange: a.teamChanged})
 	if err != nil {
 		db.Close()
 		return nil, err
@@ -59,6 +64,13 @@ func newApp(ctx context.Context, cfg config, io stdio) (*app, error) {
 		}
 	}
 	return a, nil
+}
+
+// teamChanged passes a settings change on to whoever listens.
+func (a *app) teamChanged(t record.Team) {
+	if f := a.onTeam.Load(); f != nil {
+		(*f)(t)
+	}
 }
 
 // seedDemo types the invented squad's script into the engine.

@@ -3,9 +3,120 @@ package main
 import (
 	"context"
 	"errors"
+	"fmt"
+	"log/slog"
+	"sync"
+	"time"
+
+	"github.com/clearbot-team/clearbot/bot"
+	"github.com/clearbot-team/clearbot/internal/botstore"
+	"github.com/clearbot-team/clearbot/internal/digest"
+	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/clearbot-team/clearbot/internal/slackfront"
+	"github.com/clearbot-team/clearbot/internal/weekly"
 )
 
-// runSlack serves the Slack workspace until ctx ends.
+// runSlack serves the Slack workspace until ctx ends, with the weekly digest
+// and the nightly backup on the team's schedule.
 func (a *app) runSlack(ctx context.Context) error {
-	return errors.New("slack front end not wired yet")
+	front, err := slackfront.New(slackfront.Config{
+		BotToken: a.cfg.BotToken, AppToken: a.cfg.AppToken, SigningSecret: a.cfg.SigningSecret,
+		APIURL: a.cfg.APIURL, HTTPAddr: a.cfg.HTTPAddr, Logger: a.log,
+		Handler: a.engine, Dedup: botstore.Dedup{DB: a.db},
+	})
+	if err != nil {
+		return err
+	}
+	team, err := a.engine.Team(ctx)
+	if err != nil {
+		return err
+	}
+	sched, err := weekly.New(weekly.Config{
+		Day: team.DigestDay, Minute: team.DigestMinute, Loc: teamLoc(team), Off: team.DigestOff,
+		Job:    digestJob{engine: a.engine, poster: front, log: a.log, waits: []time.Duration{time.Minute, 5 * time.Minute, 15 * time.Minute}},
+		Ledger: ledger{a.engine}, Logger: a.log,
+	})
+	if err != nil {
+		return err
+	}
+	if err := sched.AddDaily("nightly backup", backupMinute, func(ctx context.Context) error {
+		return nightlyBackup(ctx, a.db, a.engine, time.Now(), a.log)
+	}); err != nil {
+		return err
+	}
+	follow := func(t record.Team) {
+		if err := sched.Reschedule(t.DigestDay, t.DigestMinute, teamLoc(t)); err != nil {
+			a.log.Error("digest: reschedule", "err", err)
+		}
+		sched.SetOff(t.DigestOff)
+	}
+	a.onTeam.Store(&follow)
+	defer a.onTeam.Store(nil)
+
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	var wg sync.WaitGroup
+	wg.Add(1)
+	go func() {
+		defer wg.Done()
+		if err := sched.Run(ctx); err != nil {
+			a.log.Error("digest scheduler", "err", err)
+		}
+	}()
+	a.log.Info("clearbot serving Slack", "mode", front.Mode().String(), "data", a.db.Path(), "digest", fmt.Sprintf("%s %02d:%02d %s", team.DigestDay, team.DigestMinute/60, team.DigestMinute%60, teamLoc(team)))
+	err = front.Run(ctx)
+	cancel()
+	wg.Wait()
+	return err
+}
+
+// teamLoc is the team's zone, UTC when unset or unknown.
+func teamLoc(t record.Team) *time.Location {
+	if loc, err := time.LoadLocation(t.TZ); err == nil && t.TZ != "" {
+		return loc
+	}
+	return time.UTC
+}
+
+// digestJob posts a week's digest through the front end, at most once, and
+// tries again after a pause when the post fails (rate limits that outlast
+// the front end's own retries, a Slack outage).
+type digestJob struct {
+	engine *bot.Engine
+	poster slackfront.Poster
+	log    *slog.Logger
+	waits  []time.Duration
+}
+
+// PostDigest implements weekly.Job.
+func (j digestJob) PostDigest(ctx context.Context, week digest.Week, scheduledAt time.Time, late bool) error {
+	post := func(ctx context.Context, channel string, r bot.Reply) error {
+		return j.poster.PostReply(ctx, channel, "", r)
+	}
+	for attempt := 0; ; attempt++ {
+		posted, err := j.engine.PostDigest(ctx, week, scheduledAt, late, post)
+		switch {
+		case err == nil:
+			if posted {
+				j.log.Info("digest posted", "week", week.String(), "late", late)
+			}
+			return nil
+		case errors.Is(err, bot.ErrNoDigestChannel), attempt >= len(j.waits):
+			return err
+		}
+		j.log.Warn("digest post failed; will try again", "week", week.String(), "in", j.waits[attempt], "err", err)
+		select {
+		case <-ctx.Done():
+			return ctx.Err()
+		case <-time.After(j.waits[attempt]):
+		}
+	}
+}
+
+// ledger tells the scheduler which weeks already went out.
+type ledger struct{ engine *bot.Engine }
+
+// Posted implements weekly.Ledger.
+func (l ledger) Posted(week digest.Week) (bool, error) {
+	return l.engine.DigestPosted(context.Background(), week)
 }

@@ -1,10 +1,12 @@
-// Package botstore joins the command engine to the bbolt store: it adapts
-// store.DB, whose transactions are *store.Tx, to the bot.Store interface,
-// whose transactions are bot.Tx. It holds no logic of its own.
+// Package botstore joins the command engine and the chat front ends to the
+// bbolt store: it adapts store.DB, whose transactions are *store.Tx, to the
+// bot.Store interface, whose transactions are bot.Tx, and to the front ends'
+// record of handled deliveries. It holds no logic of its own.
 package botstore
 
 import (
 	"context"
+	"time"
 
 	"github.com/clearbot-team/clearbot/bot"
 	"github.com/clearbot-team/clearbot/store"
@@ -24,4 +26,31 @@ func (a Adapter) View(ctx context.Context, fn func(bot.Tx) error) error {
 // Update runs fn in one read-write transaction, committed only if fn returns nil.
 func (a Adapter) Update(ctx context.Context, fn func(bot.Tx) error) error {
 	return a.DB.Update(ctx, func(tx *store.Tx) error { return fn(tx) })
+}
+
+// Dedup presents the store's record of handled message ids to a chat front
+// end, so a delivery repeated after a restart is still recognised.
+type Dedup struct {
+	DB  *store.DB
+	Now func() time.Time // nil means time.Now
+}
+
+// Seen reports whether id was handled before.
+func (d Dedup) Seen(ctx context.Context, id string) (bool, error) {
+	var seen bool
+	err := d.DB.View(ctx, func(tx *store.Tx) error {
+		var err error
+		seen, err = tx.Seen(id)
+		return err
+	})
+	return seen, err
+}
+
+// MarkSeen records id as handled.
+func (d Dedup) MarkSeen(ctx context.Context, id string) error {
+	now := time.Now
+	if d.Now != nil {
+		now = d.Now
+	}
+	return d.DB.Update(ctx, func(tx *store.Tx) error { return tx.MarkSeen(id, now()) })
 }

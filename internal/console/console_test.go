@@ -16,7 +16,7 @@ func TestRenderAllParts(t *testing.T) {
 	r := bot.Reply{
 		Title:       "Margin at 1.80 m",
 		Lines:       []string{"clears"},
-		Fields:      []bot.Field{{"Margin", "+4.0 cm"}, {"C.m. peak", "1.92 m"}},
+		Fields:      []bot.Field{{Label: "Margin", Value: "+4.0 cm"}, {Label: "C.m. peak", Value: "1.92 m"}},
 		Table:       &bot.Table{Header: []string{"bar", "tries"}, Rows: [][]string{{"1.70", "o"}, {"1.75", "xxo"}}},
 		Assumptions: []string{"arch 90°", "h0 1.25 m"},
 		Example:     "margin 1.80 v 4.3",

@@ -1,0 +1,144 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"net"
+	"net/http"
+	"net/http/httptest"
+	"net/url"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/clearbot-team/clearbot/internal/slackfront"
+)
+
+// fakeSlack serves the few Web API methods the bot calls and records every
+// message it is sent, through chat.postMessage or a response_url.
+type fakeSlack struct {
+	srv  *httptest.Server
+	mu   sync.Mutex
+	msgs []string
+}
+
+func newFakeSlack(t *testing.T) *fakeSlack {
+	f := &fakeSlack{}
+	f.srv = httptest.NewServer(http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		body, _ := io.ReadAll(r.Body)
+		w.Header().Set("Content-Type", "application/json")
+		switch {
+		case strings.HasSuffix(r.URL.Path, "/auth.test"):
+			io.WriteString(w, `{"ok":true,"url":"https://fake.slack/","team":"Harbour","user":"clearbot","team_id":"T1","user_id":"UBOT","bot_id":"B1"}`)
+		case strings.HasSuffix(r.URL.Path, "/users.info"):
+			io.WriteString(w, `{"ok":true,"user":{"id":"U_COACH","name":"coach","real_name":"Coach","profile":{"display_name":"Coach"}}}`)
+		case strings.HasSuffix(r.URL.Path, "/chat.postMessage"), strings.HasSuffix(r.URL.Path, "/chat.postEphemeral"), strings.HasPrefix(r.URL.Path, "/respond/"):
+			f.mu.Lock()
+			f.msgs = append(f.msgs, string(body))
+			f.mu.Unlock()
+			io.WriteString(w, `{"ok":true,"channel":"C1","ts":"1700000000.000200"}`)
+		default:
+			io.WriteString(w, `{"ok":true}`)
+		}
+	}))
+	t.Cleanup(f.srv.Close)
+	return f
+}
+
+func (f *fakeSlack) all() string {
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	return strings.Join(f.msgs, "\n")
+}
+
+func freePort(t *testing.T) string {
+	l, err := net.Listen("tcp", "127.0.0.1:0")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer l.Close()
+	return l.Addr().String()
+}
+
+// In HTTP mode, with SLACK_API_URL pointed at a local fake, signed slash
+// commands reach the engine and the answers come back: a profile is added,
+// a jump logged, and history shows it.
+func TestSlackHTTPEndToEnd(t *testing.T) {
+	fake := newFakeSlack(t)
+	addr := freePort(t)
+	const secret = "test-signing-secret"
+	env := map[string]string{
+		"SLACK_BOT_TOKEN": "xoxb-test", "SLACK_SIGNING_SECRET": secret, "SLACK_API_URL": fake.srv.URL + "/api/",
+		"CLEARBOT_HEAD_COACH": "U_COACH", "TMPDIR": t.TempDir(),
+	}
+	data := filepath.Join(t.TempDir(), "slack.db")
+	ctx, cancel := context.WithCancel(context.Background())
+	done := make(chan int)
+	var out, errb syncBuffer
+	go func() {
+		done <- run(ctx, []string{"--http", addr, "--data", data}, stdio{strings.NewReader(""), &out, &errb}, func(k string) string { return env[k] })
+	}()
+	waitFor(t, func() bool {
+		resp, err := http.Get("http://" + addr + "/healthz")
+		if err == nil {
+			resp.Body.Close()
+		}
+		return err == nil && resp.StatusCode == 200
+	})
+	send := func(n int, text string) {
+		form := url.Values{
+			"command": {"/jump"}, "text": {text}, "user_id": {"U_COACH"}, "user_name": {"coach"},
+			"channel_id": {"C1"}, "team_id": {"T1"}, "trigger_id": {fmt.Sprintf("trig-%d", n)},
+			"response_url": {fake.srv.URL + "/respond/" + strconv.Itoa(n)},
+		}
+		body := form.Encode()
+		ts := strconv.FormatInt(time.Now().Unix(), 10)
+		req, _ := http.NewRequest("POST", "http://"+addr+"/slack/commands", strings.NewReader(body))
+		req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
+		req.Header.Set("X-Slack-Request-Timestamp", ts)
+		req.Header.Set("X-Slack-Signature", slackfront.Signature(secret, ts, []byte(body)))
+		resp, err := http.DefaultClient.Do(req)
+		if err != nil {
+			t.Fatal(err)
+		}
+		resp.Body.Close()
+		if resp.StatusCode != 200 {
+			t.Fatalf("%q: status %d", text, resp.StatusCode)
+		}
+	}
+	send(1, "athlete add Kai height 1.86")
+	waitFor(t, func() bool { return strings.Contains(fake.all(), "Added Kai") })
+	send(2, "log Kai 1.95 o 2.00 xo")
+	waitFor(t, func() bool { return strings.Contains(fake.all(), "Logged") })
+	send(3, "history Kai")
+	waitFor(t, func() bool { return strings.Contains(fake.all(), "1.95 o, 2.00 xo") })
+
+	// A forged request is refused and runs nothing.
+	req, _ := http.NewRequest("POST", "http://"+addr+"/slack/commands", strings.NewReader("text=athlete+remove+Kai+confirm&user_id=U_COACH"))
+	req.Header.Set("X-Slack-Request-Timestamp", strconv.FormatInt(time.Now().Unix(), 10))
+	req.Header.Set("X-Slack-Signature", "v0=00")
+	resp, err := http.DefaultClient.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	resp.Body.Close()
+	if resp.StatusCode != http.StatusUnauthorized {
+		t.Errorf("forged request: status %d, want 401", resp.StatusCode)
+	}
+	cancel()
+	select {
+	case code := <-done:
+		if code != 0 {
+			t.Errorf("exit %d: %s", code, errb.String())
+		}
+	case <-time.After(15 * time.Second):
+		t.Fatal("bot did not shut down")
+	}
+	if strings.Contains(errb.String(), "xoxb-test") || strings.Contains(errb.String(), secret) {
+		t.Error("a secret appeared in the log")
+	}
+}

@@ -1,0 +1,284 @@
+package slackfront
+
+import (
+	"context"
+	"fmt"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/slack-go/slack"
+	"github.com/slack-go/slack/slackevents"
+
+	"github.com/clearbot-team/clearbot/bot"
+)
+
+// inbound is one accepted delivery, waiting for a worker.
+type inbound struct {
+	kind     string     // "mention", "dm", "command", "button": for logs
+	keys     []dedupKey // checked in order; the first one seen decides
+	req      bot.Request
+	to       target
+	userName string // the name Slack sent along, if any, used when users.info fails
+	retry    int    // Slack's retry count (X-Slack-Retry-Num or retry_attempt)
+}
+
+// dedupKey is one id under which a delivery is remembered. notice, when
+// set, is told to the asker if the key was already seen (a second press of
+// the same button); otherwise a repeat is dropped silently (a re-delivery).
+type dedupKey struct {
+	id     string
+	notice string
+}
+
+// target is where a reply goes.
+type target struct {
+	channel     string // channel id to post in
+	threadTS    string // thread to answer in; "" for the channel itself
+	user        string // the asker, for ephemeral replies; "" when there is none
+	direct      bool   // channel is a direct message with the asker
+	responseURL string // a slash command's response_url, tried first
+}
+
+// eventKeys are the dedup ids of a message event: its event id and the
+// message's channel and ts (the same message may come as app_mention and as
+// message.im, with different event ids).
+func eventKeys(channel, ts, eventID string) []dedupKey {
+	keys := []dedupKey{{id: "ev:" + channel + ":" + ts}}
+	if eventID != "" {
+		keys = append(keys, dedupKey{id: "eid:" + eventID})
+	}
+	return keys
+}
+
+// fromEvent turns an Events API callback into work; ok is false for events
+// the bot ignores: its own messages, other bots, edits and every other
+// message subtype, and event types it did not ask for.
+func (f *Front) fromEvent(ev slackevents.EventsAPIEvent, retry int) (inbound, bool) {
+	if ev.Type != slackevents.CallbackEvent {
+		return inbound{}, false
+	}
+	eventID := ""
+	if cb, ok := ev.Data.(*slackevents.EventsAPICallbackEvent); ok {
+		eventID = cb.EventID
+	}
+	switch e := ev.InnerEvent.Data.(type) {
+	case *slackevents.AppMentionEvent:
+		if e.User == "" || e.BotID != "" || e.User == f.self.UserID || e.Edited != nil || e.TimeStamp == "" {
+			return inbound{}, false
+		}
+		in := f.messageInbound("mention", e.Channel, e.User, e.Text, e.TimeStamp, e.ThreadTimeStamp, eventID, retry)
+		if !in.to.direct && in.to.threadTS == "" {
+			in.to.threadTS = e.TimeStamp // answer a channel mention in a thread
+		}
+		return in, true
+	case *slackevents.MessageEvent:
+		if e.ChannelType != "im" || e.SubType != "" || e.BotID != "" || e.User == "" ||
+			e.User == f.self.UserID || e.TimeStamp == "" {
+			return inbound{}, false
+		}
+		return f.messageInbound("dm", e.Channel, e.User, e.Text, e.TimeStamp, e.ThreadTimeStamp, eventID, retry), true
+	}
+	return inbound{}, false
+}
+
+func (f *Front) messageInbound(kind, channel, user, text, ts, threadTS, eventID string, retry int) inbound {
+	direct := isDirectChannel(channel)
+	when, _ := tsTime(ts)
+	req := bot.Request{
+		UserID:    user,
+		Channel:   channel,
+		Text:      cleanText(text, f.self.UserID),
+		Time:      when,
+		MessageID: "ev:" + channel + ":" + ts,
+	}
+	if direct {
+		req.Channel, req.Direct = "", true
+	}
+	return inbound{
+		kind:  kind,
+		keys:  eventKeys(channel, ts, eventID),
+		req:   req,
+		to:    target{channel: channel, threadTS: threadTS, user: user, direct: direct},
+		retry: retry,
+	}
+}
+
+// fromSlash turns a slash command into work. Its message id is the
+// trigger_id, unique per invocation and repeated when Slack re-delivers the
+// same envelope; without one, a hash of who typed what where in which
+// minute (so an identical command typed twice within a minute runs once).
+func (f *Front) fromSlash(c slack.SlashCommand, retry int) inbound {
+	now := f.cfg.Clock.Now()
+	id := "cmd:" + c.TriggerID
+	if c.TriggerID == "" {
+		id = "cmd:h:" + hashID(c.TeamID, c.UserID, c.ChannelID, c.Command, c.Text, now.UTC().Truncate(time.Minute).Format(time.RFC3339))
+	}
+	direct := isDirectChannel(c.ChannelID) || c.ChannelName == "directmessage"
+	req := bot.Request{
+		UserID:    c.UserID,
+		Channel:   c.ChannelID,
+		Text:      cleanText(c.Text, f.self.UserID),
+		Time:      now,
+		MessageID: id,
+	}
+	if direct {
+		req.Channel, req.Direct = "", true
+	}
+	return inbound{
+		kind:     "command",
+		keys:     []dedupKey{{id: id}},
+		req:      req,
+		to:       target{channel: c.ChannelID, user: c.UserID, direct: direct, responseURL: c.ResponseURL},
+		userName: c.UserName,
+		retry:    retry,
+	}
+}
+
+// isOurAction reports whether an action id is one of clearbot's buttons.
+func isOurAction(id string) bool {
+	return id == ActionID || strings.HasPrefix(id, ActionID+":")
+}
+
+// fromAction turns a press of one of clearbot's buttons into work: the
+// button's value runs as a command typed by the presser, answered in the
+// same channel and thread. Payloads that are not button presses, and
+// presses of other apps' buttons, give nothing.
+func (f *Front) fromAction(cb slack.InteractionCallback, retry int) []inbound {
+	if cb.Type != slack.InteractionTypeBlockActions || cb.User.ID == "" {
+		return nil
+	}
+	channel := cb.Channel.ID
+	if channel == "" {
+		channel = cb.Container.ChannelID
+	}
+	thread := cb.Container.ThreadTs
+	if thread == "" {
+		thread = cb.Message.ThreadTimestamp
+	}
+	msgTS := cb.Container.MessageTs
+	if msgTS == "" {
+		msgTS = cb.Message.Timestamp
+	}
+	direct := isDirectChannel(channel)
+	var out []inbound
+	for i, a := range cb.ActionCallback.BlockActions {
+		if a == nil || !isOurAction(a.ActionID) || strings.TrimSpace(a.Value) == "" {
+			continue
+		}
+		// A re-delivered payload repeats the trigger_id: dropped silently.
+		// A second press by the same person of the same button on the same
+		// message: dropped with a notice. The press key is the message id.
+		var keys []dedupKey
+		if cb.TriggerID != "" {
+			keys = append(keys, dedupKey{id: "btn:t:" + cb.TriggerID + ":" + strconv.Itoa(i)})
+		}
+		if msgTS != "" {
+			keys = append(keys, dedupKey{
+				id:     "btn:" + channel + ":" + msgTS + ":" + a.ActionID + ":" + cb.User.ID,
+				notice: fmt.Sprintf("You already pressed that button; nothing ran twice. To run it again, type `%s`.", a.Value),
+			})
+		}
+		if len(keys) == 0 {
+			keys = append(keys, dedupKey{id: "btn:h:" + hashID(channel, cb.User.ID, a.ActionID, a.ActionTs)})
+		}
+		press := keys[len(keys)-1].id
+		when, ok := tsTime(a.ActionTs)
+		if !ok {
+			when = f.cfg.Clock.Now()
+		}
+		req := bot.Request{
+			UserID:    cb.User.ID,
+			Channel:   channel,
+			Text:      cleanText(a.Value, f.self.UserID),
+			Time:      when,
+			MessageID: press,
+		}
+		if direct {
+			req.Channel, req.Direct = "", true
+		}
+		out = append(out, inbound{
+			kind:     "button",
+			keys:     keys,
+			req:      req,
+			to:       target{channel: channel, threadTS: thread, user: cb.User.ID, direct: direct},
+			userName: cb.User.Name,
+			retry:    retry,
+		})
+	}
+	return out
+}
+
+// process runs one accepted delivery: drop it if it was handled before
+// (here or, through Dedup, in an earlier run), otherwise hand it to the
+// engine, remember it, and post the reply.
+func (f *Front) process(ctx context.Context, in inbound) {
+	log := f.log.With("kind", in.kind, "message_id", in.req.MessageID, "user", in.req.UserID)
+	defer func() {
+		if p := recover(); p != nil {
+			log.Error("handling a Slack delivery panicked", "panic", fmt.Sprint(p))
+		}
+	}()
+	notify := func(k dedupKey) {
+		if k.notice == "" {
+			return
+		}
+		if err := f.deliver(ctx, in.to, bot.Reply{Lines: []string{k.notice}, Ephemeral: true}); err != nil {
+			log.Warn("could not post the repeat notice", "err", err)
+		}
+	}
+	if k, ok := f.busy.claim(in.keys); !ok {
+		log.Info("dropped a copy of a delivery that is being handled", "key", k.id, "retry", in.retry)
+		notify(k)
+		return
+	}
+	defer f.busy.release(in.keys)
+	for _, k := range in.keys {
+		seen, err := f.cfg.Dedup.Seen(ctx, k.id)
+		if err != nil {
+			// Go on: the engine deduplicates writes by MessageID itself.
+			log.Warn("dedup lookup failed; handling the delivery anyway", "key", k.id, "err", err)
+			continue
+		}
+		if seen {
+			log.Info("dropped a delivery that was already handled", "key", k.id, "retry", in.retry)
+			notify(k)
+			return
+		}
+	}
+	start := time.Now()
+	req := in.req
+	req.UserName = f.displayName(ctx, req.UserID, in.userName)
+	reply := f.cfg.Handler.Handle(ctx, req)
+	for _, k := range in.keys {
+		if err := f.cfg.Dedup.MarkSeen(ctx, k.id); err != nil {
+			log.Warn("could not record the delivery as handled", "key", k.id, "err", err)
+		}
+	}
+	if err := f.deliver(ctx, in.to, reply); err != nil {
+		log.Error("could not post the reply", "err", err)
+		return
+	}
+	log.Debug("handled", "reply_kind", reply.Kind.String(), "took", time.Since(start))
+}
+
+// displayName asks Users for the asker's name, falling back to the name
+// Slack sent along and then to the id.
+func (f *Front) displayName(ctx context.Context, userID, fallback string) string {
+	if userID == "" {
+		return fallback
+	}
+	lctx, cancel := context.WithTimeout(ctx, 3*time.Second)
+	defer cancel()
+	name, err := f.users.DisplayName(lctx, userID)
+	if err == nil && name != "" {
+		return name
+	}
+	if err != nil {
+		f.log.Debug("users.info failed; using a fallback name", "user", userID, "err", err)
+	}
+	if fallback != "" {
+		return fallback
+	}
+	return userID
+}

@@ -1,0 +1,169 @@
+package slackfront
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"net/http"
+	"time"
+
+	"github.com/slack-go/slack"
+	"github.com/slack-go/slack/slackevents"
+	"github.com/slack-go/slack/socketmode"
+)
+
+// ackTimeout bounds how long an acknowledgement may wait for the websocket
+// writer (Slack wants it within 3 s).
+const ackTimeout = 2 * time.Second
+
+// serveSocket runs the socket-mode client and drains its events until ctx
+// is cancelled or a fatal error stops it. slack-go reconnects by itself
+// after a disconnect frame, a dead connection (no ping within
+// Config.PingInterval) or a failed connect, with exponential backoff; it
+// gives up only on refused tokens, which end Run with a clear message.
+func (f *Front) serveSocket(ctx context.Context) error {
+	sm := socketmode.New(f.api,
+		socketmode.OptionPingInterval(f.cfg.PingInterval),
+		socketmode.OptionLog(debugOutput{f.log}))
+	runCtx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	runDone := make(chan error, 1)
+	go func() { runDone <- sm.RunContext(runCtx) }()
+	close(f.ready)
+
+	var fatal error
+	for {
+		select {
+		case ev := <-sm.Events:
+			// Always drain, also while stopping: a client whose events
+			// are not read stalls and reconnects in a loop.
+			if err := f.onSocketEvent(runCtx, sm, ev); err != nil && fatal == nil {
+				fatal = err
+				f.log.Error("stopping socket mode", "err", err)
+				cancel()
+			}
+		case err := <-runDone:
+			switch {
+			case fatal != nil:
+				return fatal
+			case ctx.Err() != nil:
+				return nil
+			case err == nil:
+				return errors.New("slack: socket mode stopped without a reason")
+			default:
+				return socketFatal(f.cfg.APIURL, err)
+			}
+		}
+	}
+}
+
+// socketFatal explains why socket mode cannot go on.
+func socketFatal(apiURL string, err error) error {
+	var se slack.SlackErrorResponse
+	var sc slack.StatusCodeError
+	switch {
+	case errors.As(err, &se) && fatalAuthCode(se.Err):
+		return fmt.Errorf("slack: socket mode refused SLACK_APP_TOKEN (%s): create an app-level token with the connections:write scope (Basic Information → App-Level Tokens) and turn Socket Mode on: %w", se.Err, err)
+	case errors.As(err, &sc) && sc.Code == http.StatusNotFound:
+		return fmt.Errorf("slack: apps.connections.open is not found at %s; check SLACK_API_URL: %w", apiURL, err)
+	default:
+		return fmt.Errorf("slack: socket mode stopped: %w", err)
+	}
+}
+
+// onSocketEvent handles one event of the socket-mode client. Envelopes are
+// acknowledged at once and their work queued; when the queue is full an
+// event is left unacknowledged, so Slack delivers it again later, and a
+// slash command is acknowledged with a "busy" answer. A non-nil error is
+// fatal.
+func (f *Front) onSocketEvent(ctx context.Context, sm *socketmode.Client, ev socketmode.Event) error {
+	retry := 0
+	if ev.Request != nil {
+		retry = ev.Request.RetryAttempt
+		if retry > 0 {
+			f.log.Info("Slack re-delivered an envelope", "type", ev.Type, "retry", retry, "reason", ev.Request.RetryReason)
+		}
+	}
+	switch ev.Type {
+	case socketmode.EventTypeConnecting:
+		f.log.Debug("connecting to Slack")
+	case socketmode.EventTypeConnected:
+		f.log.Info("socket mode connected")
+	case socketmode.EventTypeHello:
+		f.log.Debug("socket mode hello")
+	case socketmode.EventTypeInvalidAuth:
+		return errors.New("slack: socket mode refused SLACK_APP_TOKEN (invalid_auth): create an app-level token with the connections:write scope and turn Socket Mode on")
+	case socketmode.EventTypeConnectionError:
+		if ce, ok := ev.Data.(*slack.ConnectionErrorEvent); ok {
+			var se slack.SlackErrorResponse
+			if errors.As(ce.ErrorObj, &se) && fatalAuthCode(se.Err) {
+				return socketFatal(f.cfg.APIURL, ce.ErrorObj)
+			}
+			f.log.Warn("socket mode connection failed; retrying with backoff", "attempt", ce.Attempt, "backoff", ce.Backoff, "err", ce.ErrorObj)
+		}
+	case socketmode.EventTypeEventsAPI:
+		data, _ := ev.Data.(slackevents.EventsAPIEvent)
+		in, ok := f.fromEvent(data, retry)
+		if !ok {
+			f.ack(ctx, sm, ev.Request, nil)
+			return nil
+		}
+		f.acceptEnvelope(ctx, sm, ev.Request, []inbound{in}, nil)
+	case socketmode.EventTypeSlashCommand:
+		cmd, _ := ev.Data.(slack.SlashCommand)
+		if cmd.UserID == "" {
+			f.ack(ctx, sm, ev.Request, nil)
+			return nil
+		}
+		busy := map[string]string{"response_type": slack.ResponseTypeEphemeral, "text": busyText}
+		f.acceptEnvelope(ctx, sm, ev.Request, []inbound{f.fromSlash(cmd, retry)}, busy)
+	case socketmode.EventTypeInteractive:
+		cb, _ := ev.Data.(slack.InteractionCallback)
+		f.acceptEnvelope(ctx, sm, ev.Request, f.fromAction(cb, retry), nil)
+	case socketmode.EventTypeErrorBadMessage:
+		if bm, ok := ev.Data.(*socketmode.ErrorBadMessage); ok {
+			// Acknowledge what we cannot read, or Slack sends it forever.
+			var env struct {
+				EnvelopeID string `json:"envelope_id"`
+			}
+			if json.Unmarshal(bm.Message, &env) == nil && env.EnvelopeID != "" {
+				f.ack(ctx, sm, &socketmode.Request{EnvelopeID: env.EnvelopeID}, nil)
+			}
+			f.log.Warn("unreadable socket-mode message", "err", bm.Cause)
+		}
+	case socketmode.EventTypeIncomingError, socketmode.EventTypeErrorWriteFailed:
+		f.log.Warn("socket mode trouble", "type", ev.Type, "data", fmt.Sprint(ev.Data))
+	}
+	return nil
+}
+
+// acceptEnvelope queues the work of one envelope and acknowledges it. If
+// the queue cannot take it all, a busy payload (if any) is sent as the
+// acknowledgement; without one the envelope stays unacknowledged and Slack
+// re-delivers it (what was queued is then dropped as a duplicate).
+func (f *Front) acceptEnvelope(ctx context.Context, sm *socketmode.Client, req *socketmode.Request, work []inbound, busy any) {
+	for _, in := range work {
+		if !f.pool.Load().offer(in) {
+			if busy != nil {
+				f.log.Warn("work queue full; told the asker to try again", "queue", f.cfg.QueueSize)
+				f.ack(ctx, sm, req, busy)
+				return
+			}
+			f.log.Warn("work queue full; leaving the envelope for Slack to deliver again", "queue", f.cfg.QueueSize)
+			return
+		}
+	}
+	f.ack(ctx, sm, req, nil)
+}
+
+func (f *Front) ack(ctx context.Context, sm *socketmode.Client, req *socketmode.Request, payload any) {
+	if req == nil || req.EnvelopeID == "" {
+		return
+	}
+	actx, cancel := context.WithTimeout(ctx, ackTimeout)
+	defer cancel()
+	if err := sm.AckCtx(actx, req.EnvelopeID, payload); err != nil {
+		f.log.Warn("could not acknowledge an envelope; Slack will deliver it again", "envelope", req.EnvelopeID, "err", err)
+	}
+}

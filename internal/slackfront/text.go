@@ -1,0 +1,81 @@
+package slackfront
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"strconv"
+	"strings"
+	"time"
+)
+
+// cleanText turns a Slack message text into a command line: mentions of
+// the bot itself (<@UBOT> or <@UBOT|name>) are removed wherever they stand,
+// Slack's three entities (&amp; &lt; &gt;) are decoded, and the result is
+// trimmed. Other mentions stay: the engine resolves <@U123> to a person.
+func cleanText(text, botUserID string) string {
+	if botUserID != "" {
+		var b strings.Builder
+		for {
+			i := strings.Index(text, "<@")
+			if i < 0 {
+				break
+			}
+			end := strings.IndexByte(text[i:], '>')
+			if end < 0 {
+				break
+			}
+			token := text[i : i+end+1]
+			id, _, _ := strings.Cut(strings.TrimSuffix(strings.TrimPrefix(token, "<@"), ">"), "|")
+			b.WriteString(text[:i])
+			if id == botUserID {
+				b.WriteByte(' ')
+			} else {
+				b.WriteString(token)
+			}
+			text = text[i+end+1:]
+		}
+		b.WriteString(text)
+		text = b.String()
+	}
+	text = strings.NewReplacer("&lt;", "<", "&gt;", ">", "&amp;", "&").Replace(text)
+	return strings.Join(strings.Fields(text), " ")
+}
+
+// tsTime converts a Slack timestamp ("1531420618.000200": Unix seconds and
+// microseconds) to a time; ok is false when it is not one.
+func tsTime(ts string) (time.Time, bool) {
+	secs, frac, _ := strings.Cut(ts, ".")
+	s, err := strconv.ParseInt(secs, 10, 64)
+	if err != nil || s <= 0 {
+		return time.Time{}, false
+	}
+	var ns int64
+	if frac != "" {
+		if len(frac) > 9 {
+			frac = frac[:9]
+		}
+		f, err := strconv.ParseInt(frac, 10, 64)
+		if err != nil || f < 0 {
+			return time.Time{}, false
+		}
+		for range 9 - len(frac) {
+			f *= 10
+		}
+		ns = f
+	}
+	return time.Unix(s, ns).UTC(), true
+}
+
+// hashID is a short stable id for deliveries that carry none of their own.
+func hashID(parts ...string) string {
+	h := sha256.New()
+	for _, p := range parts {
+		h.Write([]byte(p))
+		h.Write([]byte{0})
+	}
+	return hex.EncodeToString(h.Sum(nil))[:32]
+}
+
+// isDirectChannel reports whether a channel id is a direct message (Slack
+// gives direct-message conversations ids starting with D; common practice).
+func isDirectChannel(id string) bool { return strings.HasPrefix(id, "D") }
