@@ -126,7 +126,21 @@ func (c *call) view(fn func(Tx) error) error {
 // message id, the id is checked and recorded in the same transaction, so a
 // re-delivered message changes nothing the second time (errDuplicate).
 func (c *call) update(fn func(Tx) error) error {
-	return c.e.store.Update(c.ctx, func(tx Tx) error {
+	return c.e.store.Update(c.ctx, c.once(fn))
+}
+
+// updateBatched is update through the store's group commit, for the hot
+// write path (logging from many phones at once). fn may run more than once
+// and must build its results afresh each time.
+func (c *call) updateBatched(fn func(Tx) error) error {
+	return c.e.store.Batch(c.ctx, c.once(fn))
+}
+
+// once wraps fn with the message-id check: a message already handled
+// changes nothing (errDuplicate); otherwise its id is recorded in the same
+// transaction as its changes.
+func (c *call) once(fn func(Tx) error) func(Tx) error {
+	return func(tx Tx) error {
 		if id := c.req.MessageID; id != "" {
 			seen, err := tx.Seen(id)
 			if err != nil {
@@ -140,7 +154,7 @@ func (c *call) update(fn func(Tx) error) error {
 			}
 		}
 		return fn(tx)
-	})
+	}
 }
 
 // audit appends who changed what, with the record before and after as JSON.

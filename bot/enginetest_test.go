@@ -16,6 +16,9 @@ import (
 	"github.com/clearbot-team/clearbot/store"
 )
 
+// testStoreOptions tune bbolt's group commit as cmd/clearbot does.
+var testStoreOptions = store.Options{MaxBatchSize: 100, MaxBatchDelay: 2 * time.Millisecond}
+
 var update = flag.Bool("update", false, "rewrite golden replies under testdata/replies")
 
 // testClockStart is the fixed time tests run at (a Wednesday, 10:00 UTC).
@@ -45,7 +48,7 @@ func newTestEngine(t testing.TB) *testEngine {
 // data (a copy of a prepared store, say).
 func newTestEngineAt(t testing.TB, path string) *testEngine {
 	t.Helper()
-	db, err := store.Open(path, store.Options{})
+	db, err := store.Open(path, testStoreOptions)
 	if err != nil {
 		t.Fatalf("open store: %v", err)
 	}

@@ -20,7 +20,7 @@ import (
 // clock is set by the caller.
 func benchStore(b *testing.B, now *time.Time) (*store.DB, *bot.Engine) {
 	b.Helper()
-	db, err := store.Open(filepath.Join(b.TempDir(), "clearbot.db"), store.Options{})
+	db, err := store.Open(filepath.Join(b.TempDir(), "clearbot.db"), testStoreOptions)
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -102,7 +102,7 @@ func runLog(c *call) (Reply, error) {
 		return Reply{}, err
 	}
 	var r Reply
-	err = c.update(func(tx Tx) error {
+	err = c.updateBatched(func(tx Tx) error { // logInTx builds everything afresh: safe to re-run
 		var err error
 		r, err = c.logInTx(tx, ln)
 		return err

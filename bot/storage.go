@@ -14,6 +14,10 @@ import (
 type Store interface {
 	View(ctx context.Context, fn func(Tx) error) error
 	Update(ctx context.Context, fn func(Tx) error) error
+	// Batch is Update for many concurrent writers: calls that arrive
+	// together share one commit (one fsync). fn may run more than once, so
+	// it must build everything it returns afresh on each run.
+	Batch(ctx context.Context, fn func(Tx) error) error
 }
 
 // Tx is what a command may read and write inside one transaction.

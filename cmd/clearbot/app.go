@@ -43,7 +43,12 @@ func newApp(ctx context.Context, cfg config, io stdio) (*app, error) {
 			return nil, fmt.Errorf("reset demo file: %w", err)
 		}
 	}
-	db, err := store.Open(path, store.Options{Timeout: cfg.LockWait})
+	// Group commit for concurrent loggers: up to 100 log commands share one
+	// commit. A lone writer commits at once (store.DB.Batch); writers that
+	// arrive together wait at most 2 ms for company. Measured with 100
+	// concurrent loggers: 0.2 ms gave about 400 µs a log, 2 ms about 150 µs,
+	// because the runtime fires so short a timer only after about 1 ms.
+	db, err := store.Open(path, store.Options{Timeout: cfg.LockWait, MaxBatchSize: 100, MaxBatchDelay: 2 * time.Millisecond})
 	if err != nil {
 		return nil, err
 	}
