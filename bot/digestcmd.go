@@ -113,7 +113,7 @@ func runDigestShow(c *call) (Reply, error) {
 		add("Schedule", fmt.Sprintf("every %s at %02d:%02d %s", t.DigestDay, t.DigestMinute/60, t.DigestMinute%60, loc))
 		add("Next", next.In(loc).Format("Mon 2 Jan 15:04"))
 	}
-	channel := t.DigestChannel
+	channel := channelLabel(t.DigestChannel)
 	if channel == "" {
 		channel = "not set (a head coach sets it with `digest channel #jumps`)"
 	}
@@ -439,6 +439,31 @@ func runDigestChannel(c *call) (Reply, error) {
 		return Reply{}, err
 	}
 	return Reply{Title: "Digest channel set", Lines: []string{"The weekly digest will be posted in " + c.args[0].Raw + ". Invite the bot to that channel if it is not there yet."}}, nil
+}
+
+// channelLabel shows a stored channel: Slack's mention form for an id, #name otherwise.
+func channelLabel(ch string) string {
+	switch {
+	case ch == "":
+		return ""
+	case isChannelID(ch):
+		return "<#" + ch + ">"
+	default:
+		return "#" + ch
+	}
+}
+
+// isChannelID reports whether ch looks like a Slack conversation id (C…, G…, D…).
+func isChannelID(ch string) bool {
+	if len(ch) < 9 || !strings.ContainsRune("CGD", rune(ch[0])) {
+		return false
+	}
+	for _, r := range ch {
+		if !(r >= 'A' && r <= 'Z' || r >= '0' && r <= '9') {
+			return false
+		}
+	}
+	return true
 }
 
 // channelRef reads a channel as typed: Slack's <#C123|jumps> gives its id;

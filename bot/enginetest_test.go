@@ -32,6 +32,7 @@ type testEngine struct {
 	DB  *store.DB
 	now time.Time
 	seq int
+	closed bool
 	// idPrefix makes message ids unique across engines that share a file
 	// (a copied template already holds the ids it was built with).
 	idPrefix string
@@ -54,6 +55,9 @@ func newTestEngineAt(t testing.TB, path string) *testEngine {
 	}
 	te := &testEngine{t: t, DB: db, now: testClockStart, idPrefix: "m"}
 	t.Cleanup(func() {
+		if te.closed {
+			return
+		}
 		if err := db.Check(); err != nil {
 			t.Errorf("store invariants after test: %v", err)
 		}
@@ -157,4 +161,14 @@ func contains(t testing.TB, r bot.Reply, wants ...string) {
 			t.Errorf("reply lacks %q:\n%s", w, p)
 		}
 	}
+}
+
+// close closes the store after checking its invariants, as a restart would.
+func (te *testEngine) close() {
+	te.t.Helper()
+	if err := te.DB.Check(); err != nil {
+		te.t.Errorf("store invariants: %v", err)
+	}
+	te.DB.Close()
+	te.closed = true
 }

@@ -142,3 +142,70 @@ func TestSlackHTTPEndToEnd(t *testing.T) {
 		t.Error("a secret appeared in the log")
 	}
 }
+
+// A digest whose post is rate limited (HTTP 429 with Retry-After) is posted
+// after the wait, and exactly once however often the scheduler asks.
+func TestDigestRateLimitedPostsOnce(t *testing.T) {
+	var (
+		mu        sync.Mutex
+		posts     int
+		limited   bool
+		limitedAt time.Time
+		postedAt  time.Time
+	)
+	srv := httptest.NewServer(http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		w.Header().Set("Content-Type", "application/json")
+		mu.Lock()
+		defer mu.Unlock()
+		switch {
+		case strings.HasSuffix(r.URL.Path, "/chat.postMessage"):
+			if !limited {
+				limited, limitedAt = true, time.Now()
+				w.Header().Set("Retry-After", "1")
+				w.WriteHeader(http.StatusTooManyRequests)
+				io.WriteString(w, `{"ok":false,"error":"ratelimited"}`)
+				return
+			}
+			posts++
+			postedAt = time.Now()
+			io.WriteString(w, `{"ok":true,"channel":"C1","ts":"1.2"}`)
+		default:
+			io.WriteString(w, `{"ok":true,"file_id":"F1","upload_url":"`+"http://"+r.Host+`/upload"}`)
+		}
+	}))
+	defer srv.Close()
+	env := func(k string) string { return map[string]string{"TMPDIR": t.TempDir()}[k] }
+	cfg, err := parseConfig([]string{"--data", filepath.Join(t.TempDir(), "d.db")}, env, io.Discard)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, err := newApp(context.Background(), cfg, stdio{strings.NewReader(""), io.Discard, io.Discard})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer a.Close()
+	for _, line := range []string{"digest channel C0JUMPS01", "athlete add Kai height 1.86"} {
+		if r := a.engine.Handle(context.Background(), botReq(line)); !r.OK() {
+			t.Fatalf("%s: %+v", line, r)
+		}
+	}
+	front, err := slackfront.New(slackfront.Config{BotToken: "xoxb-test", AppToken: "xapp-test", APIURL: srv.URL + "/", Handler: a.engine, Dedup: nopDedup{}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	job := digestJob{engine: a.engine, poster: front, log: a.log, waits: []time.Duration{10 * time.Millisecond}}
+	week := digestWeek(t, "2026-W48")
+	for i := 0; i < 3; i++ {
+		if err := job.PostDigest(context.Background(), week, time.Now(), false); err != nil {
+			t.Fatalf("try %d: %v", i, err)
+		}
+	}
+	mu.Lock()
+	defer mu.Unlock()
+	if posts != 1 {
+		t.Errorf("digest posted %d times, want 1", posts)
+	}
+	if wait := postedAt.Sub(limitedAt); wait < 900*time.Millisecond {
+		t.Errorf("retried after %v, before the 1 s Retry-After", wait)
+	}
+}

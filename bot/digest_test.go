@@ -1,0 +1,139 @@
+package bot_test
+
+import (
+	"context"
+	"errors"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/clearbot-team/clearbot/bot"
+	"github.com/clearbot-team/clearbot/internal/digest"
+)
+
+// digestSquad logs two weeks of practice for two athletes, one private.
+func digestSquad(t *testing.T, te *testEngine) {
+	t.Helper()
+	te.must("team name Test Club")
+	te.must("digest channel #jumps")
+	te.must("athlete add Mira height 1.78 sex f pb 1.90")
+	te.must("athlete add Ines height 1.69 sex f born 2011 private yes")
+	te.must("athlete add Kai height 1.86 sex m")
+	te.must("athlete link Ines <@U_INES>")
+	te.must("role coach <@U_COACH>")
+	// The test clock starts Wednesday 2026-11-25 (ISO week 48).
+	te.must("log Mira 1.60 o 1.65 xo 1.70 xxx by 3cm")
+	te.must("log Ines 1.50 o 1.55 xxx")
+}
+
+func TestPostDigestExactlyOnceAcrossRestart(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "d.db")
+	te := newTestEngineAt(t, path)
+	digestSquad(t, te)
+	week := digest.Week{Year: 2026, Num: 48}
+	var posts []bot.Reply
+	post := func(_ context.Context, channel string, r bot.Reply) error {
+		if channel != "jumps" {
+			t.Errorf("posted to %q", channel)
+		}
+		posts = append(posts, r)
+		return nil
+	}
+	ctx := context.Background()
+	sched := time.Date(2026, 11, 30, 7, 0, 0, 0, time.UTC)
+	if ok, err := te.E.PostDigest(ctx, week, sched, false, post); !ok || err != nil {
+		t.Fatalf("first post: %v %v", ok, err)
+	}
+	if ok, err := te.E.PostDigest(ctx, week, sched, true, post); ok || err != nil {
+		t.Fatalf("second post: %v %v", ok, err)
+	}
+	// A restart: a new engine on the reopened file.
+	te.close()
+	te2 := newTestEngineAt(t, path)
+	if ok, err := te2.E.PostDigest(ctx, week, sched, true, post); ok || err != nil {
+		t.Fatalf("after restart: %v %v", ok, err)
+	}
+	if len(posts) != 1 {
+		t.Fatalf("%d posts, want exactly 1", len(posts))
+	}
+	p := plain(posts[0])
+	for _, want := range []string{"Clearance digest 2026-W48: Test Club", "Mira", "Ines: details sent privately", "No jumps this week: Kai"} {
+		if !strings.Contains(p, want) {
+			t.Errorf("digest lacks %q:\n%s", want, p)
+		}
+	}
+	if strings.Contains(p, "1.50") || strings.Contains(p, "1.55") {
+		t.Errorf("the private athlete's numbers leaked into the channel:\n%s", p)
+	}
+	var toInes, toCoach bool
+	for _, d := range posts[0].Direct {
+		toInes = toInes || d.UserID == "U_INES"
+		toCoach = toCoach || d.UserID == "U_COACH"
+		if !strings.Contains(plain(d.Reply), "1.50") {
+			t.Errorf("private message lacks the athlete's bar:\n%s", plain(d.Reply))
+		}
+	}
+	if !toInes || !toCoach {
+		t.Errorf("private details not sent to the athlete and the coach: %+v", posts[0].Direct)
+	}
+	if len(posts[0].Files) != 1 || posts[0].Files[0].MIME != "image/png" {
+		t.Errorf("no chart attached: %+v", posts[0].Files)
+	}
+}
+
+func TestPostDigestFailureReleasesTheWeek(t *testing.T) {
+	te := newTestEngine(t)
+	digestSquad(t, te)
+	week := digest.Week{Year: 2026, Num: 48}
+	ctx := context.Background()
+	fail := func(context.Context, string, bot.Reply) error { return errors.New("slack is down") }
+	if ok, err := te.E.PostDigest(ctx, week, time.Now(), false, fail); ok || err == nil {
+		t.Fatalf("failed post reported %v, %v", ok, err)
+	}
+	if posted, _ := te.E.DigestPosted(ctx, week); posted {
+		t.Fatal("a failed post left the week marked as posted")
+	}
+	n := 0
+	okPost := func(context.Context, string, bot.Reply) error { n++; return nil }
+	if ok, err := te.E.PostDigest(ctx, week, time.Now(), true, okPost); !ok || err != nil || n != 1 {
+		t.Fatalf("retry: %v %v %d", ok, err, n)
+	}
+}
+
+func TestPostDigestNeedsChannelAndHonoursOff(t *testing.T) {
+	te := newTestEngine(t)
+	week := digest.Week{Year: 2026, Num: 48}
+	post := func(context.Context, string, bot.Reply) error { t.Error("posted"); return nil }
+	if _, err := te.E.PostDigest(context.Background(), week, time.Now(), false, post); !errors.Is(err, bot.ErrNoDigestChannel) {
+		t.Errorf("no channel: %v", err)
+	}
+	te.must("digest channel #jumps")
+	te.must("digest off")
+	if ok, err := te.E.PostDigest(context.Background(), week, time.Now(), false, post); ok || err != nil {
+		t.Errorf("digest off still posted: %v %v", ok, err)
+	}
+}
+
+func TestDigestCommands(t *testing.T) {
+	te := newTestEngine(t)
+	digestSquad(t, te)
+	contains(t, te.must("digest"), "every Monday at 07:00 UTC", "#jumps", "none in the last 8 weeks")
+	te.must("team tz Europe/Madrid")
+	te.must("digest schedule thu 18:30")
+	contains(t, te.must("digest"), "every Thursday at 18:30 Europe/Madrid")
+	// A coach's preview shows the private athlete in full, to the coach only.
+	r := te.as("U_COACH", "digest now")
+	if !r.Ephemeral || len(r.Direct) != 0 {
+		t.Errorf("preview must be ephemeral and send nothing: %+v", r.Direct)
+	}
+	contains(t, r, "This week so far", "Ines")
+	// An athlete's preview is the channel's view.
+	contains(t, te.as("U_INES", "digest now"), "Ines: details sent privately")
+	contains(t, te.must("digest week 2026-W47"), "No jumps were logged this week.")
+	for _, bad := range []string{"digest week 2026-W60", "digest week 2027-W10", "digest schedule funday 07:00", "digest schedule mon 25:00", "digest channel ##", "digest off now"} {
+		if r := te.run(bad); r.OK() || r.Example == "" {
+			t.Errorf("%q: %v\n%s", bad, r.Kind, plain(r))
+		}
+	}
+}
