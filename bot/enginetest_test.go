@@ -27,11 +27,11 @@ var testClockStart = time.Date(2026, 11, 25, 10, 0, 0, 0, time.UTC)
 // testEngine is an engine over a temporary bbolt file, with a clock that
 // advances one second per read so every message has its own time.
 type testEngine struct {
-	t   testing.TB
-	E   *bot.Engine
-	DB  *store.DB
-	now time.Time
-	seq int
+	t      testing.TB
+	E      *bot.Engine
+	DB     *store.DB
+	now    time.Time
+	seq    int
 	closed bool
 	// idPrefix makes message ids unique across engines that share a file
 	// (a copied template already holds the ids it was built with).
