@@ -28,6 +28,12 @@ func (a Adapter) Update(ctx context.Context, fn func(bot.Tx) error) error {
 	return a.DB.Update(ctx, func(tx *store.Tx) error { return fn(tx) })
 }
 
+// Batch runs fn in a transaction shared with concurrent callers; fn may
+// run more than once.
+func (a Adapter) Batch(ctx context.Context, fn func(bot.Tx) error) error {
+	return a.DB.Batch(ctx, func(tx *store.Tx) error { return fn(tx) })
+}
+
 // Dedup presents the store's record of handled message ids to a chat front
 // end, so a delivery repeated after a restart is still recognised.
 type Dedup struct {
