@@ -120,11 +120,7 @@ type loggedJump struct {
 }
 
 func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
-	team, err := tx.Team()
-	if err != nil {
-		return Reply{}, err
-	}
-	loc, err := logLocation(team)
+	team, loc, err := teamAndZone(tx)
 	if err != nil {
 		return Reply{}, err
 	}
@@ -384,11 +380,7 @@ func runUndo(c *call) (Reply, error) {
 }
 
 func (c *call) undoInTx(tx Tx) (Reply, error) {
-	team, err := tx.Team()
-	if err != nil {
-		return Reply{}, err
-	}
-	loc, err := logLocation(team)
+	team, loc, err := teamAndZone(tx)
 	if err != nil {
 		return Reply{}, err
 	}
@@ -577,11 +569,7 @@ func runHistory(c *call) (Reply, error) {
 	}
 	var r Reply
 	err = c.view(func(tx Tx) error {
-		team, err := tx.Team()
-		if err != nil {
-			return err
-		}
-		loc, err := logLocation(team)
+		team, loc, err := teamAndZone(tx)
 		if err != nil {
 			return err
 		}
@@ -648,11 +636,7 @@ func runBest(c *call) (Reply, error) {
 	}
 	var r Reply
 	err := c.view(func(tx Tx) error {
-		team, err := tx.Team()
-		if err != nil {
-			return err
-		}
-		loc, err := logLocation(team)
+		team, loc, err := teamAndZone(tx)
 		if err != nil {
 			return err
 		}

@@ -153,11 +153,7 @@ func runExportCSV(c *call) (Reply, error) {
 	}
 	var r Reply
 	err := c.view(func(tx Tx) error {
-		team, err := tx.Team()
-		if err != nil {
-			return err
-		}
-		loc, err := logLocation(team)
+		_, loc, err := teamAndZone(tx)
 		if err != nil {
 			return err
 		}
@@ -543,11 +539,7 @@ func (c *call) importCSV(source string, data []byte, progress func(done, total i
 }
 
 func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done, total int)) (Reply, error) {
-	team, err := tx.Team()
-	if err != nil {
-		return Reply{}, err
-	}
-	loc, err := logLocation(team)
+	team, loc, err := teamAndZone(tx)
 	if err != nil {
 		return Reply{}, err
 	}

@@ -27,6 +27,16 @@ func teamCommands() []command {
 	}
 }
 
+// teamAndZone reads the team settings and loads the time zone they name.
+func teamAndZone(tx Tx) (record.Team, *time.Location, error) {
+	t, err := tx.Team()
+	if err != nil {
+		return t, nil, err
+	}
+	loc, err := logLocation(t)
+	return t, loc, err
+}
+
 // updateTeam loads the settings, lets change edit them, stores them and
 // audits the change, all in one transaction.
 func (c *call) updateTeam(action string, change func(t *record.Team) error) (record.Team, error) {
