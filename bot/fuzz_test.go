@@ -3,7 +3,9 @@ package bot_test
 import (
 	"context"
 	"strings"
+	"sync/atomic"
 	"testing"
+	"time"
 
 	"github.com/clearbot-team/clearbot/bot"
 )
@@ -25,8 +27,13 @@ func FuzzHandle(f *testing.F) {
 	te := newTestEngine(f)
 	te.must("athlete add Mira height 1.78 mass 63 sex f pb 1.81")
 	te.must("log Mira 1.70 o 1.75 xo 1.78 xxx")
+	// Each input is a message of its own minute, as real messages are; a
+	// fixed time would pile every logged line onto one key range and make
+	// the run slow down as the store grows.
+	var n atomic.Int64
 	f.Fuzz(func(t *testing.T, line string) {
-		r := te.E.Handle(context.Background(), bot.Request{UserID: "U_HEAD", Text: line, Time: testClockStart})
+		at := testClockStart.Add(time.Duration(n.Add(1)) * time.Minute)
+		r := te.E.Handle(context.Background(), bot.Request{UserID: "U_HEAD", Text: line, Time: at})
 		if r.Kind == bot.KindInternal {
 			t.Fatalf("internal failure on %q:\n%s", line, plain(r))
 		}
