@@ -44,12 +44,7 @@ func (a *app) runSlack(ctx context.Context) error {
 	}); err != nil {
 		return err
 	}
-	follow := func(t record.Team) {
-		if err := sched.Reschedule(t.DigestDay, t.DigestMinute, teamLoc(t)); err != nil {
-			a.log.Error("digest: reschedule", "err", err)
-		}
-		sched.SetOff(t.DigestOff)
-	}
+	follow := followTeam(sched, a.log)
 	a.onTeam.Store(&follow)
 	defer a.onTeam.Store(nil)
 
@@ -68,6 +63,20 @@ func (a *app) runSlack(ctx context.Context) error {
 	cancel()
 	wg.Wait()
 	return err
+}
+
+// followTeam moves the scheduler to changed team settings. The on/off
+// switch goes first: Reschedule starts a catch-up check at once, which must
+// see the new switch (after `digest on`, a digest due within the catch-up
+// window goes out). A change that arrives while the bot shuts down finds
+// the scheduler stopped; the next start reads the settings anyway.
+func followTeam(sched *weekly.Scheduler, log *slog.Logger) func(record.Team) {
+	return func(t record.Team) {
+		sched.SetOff(t.DigestOff)
+		if err := sched.Reschedule(t.DigestDay, t.DigestMinute, teamLoc(t)); err != nil && !errors.Is(err, weekly.ErrStopped) {
+			log.Error("digest: reschedule", "err", err)
+		}
+	}
 }
 
 // teamLoc is the team's zone, UTC when unset or unknown.
@@ -91,7 +100,16 @@ type digestJob struct {
 // PostDigest implements weekly.Job.
 func (j digestJob) PostDigest(ctx context.Context, week digest.Week, scheduledAt time.Time, late bool) error {
 	post := func(ctx context.Context, channel string, r bot.Reply) error {
-		return j.poster.PostReply(ctx, channel, "", r)
+		err := j.poster.PostReply(ctx, channel, "", r)
+		if errors.Is(err, slackfront.ErrPartlyPosted) {
+			// The digest is in the channel but a chart or a private
+			// message failed. An error here would make the engine release
+			// the week and the retries below post the digest again, so the
+			// week counts as posted and the failure is only logged.
+			j.log.Error("digest posted in part; not posting it again", "week", week.String(), "err", err)
+			return nil
+		}
+		return err
 	}
 	for attempt := 0; ; attempt++ {
 		posted, err := j.engine.PostDigest(ctx, week, scheduledAt, late, post)

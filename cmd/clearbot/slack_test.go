@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"log/slog"
 	"net"
 	"net/http"
 	"net/http/httptest"
@@ -15,7 +16,11 @@ import (
 	"testing"
 	"time"
 
+	"github.com/clearbot-team/clearbot/bot"
+	"github.com/clearbot-team/clearbot/internal/digest"
+	"github.com/clearbot-team/clearbot/internal/record"
 	"github.com/clearbot-team/clearbot/internal/slackfront"
+	"github.com/clearbot-team/clearbot/internal/weekly"
 )
 
 // fakeSlack serves the few Web API methods the bot calls and records every
@@ -207,5 +212,105 @@ func TestDigestRateLimitedPostsOnce(t *testing.T) {
 	}
 	if wait := postedAt.Sub(limitedAt); wait < 900*time.Millisecond {
 		t.Errorf("retried after %v, before the 1 s Retry-After", wait)
+	}
+}
+
+// partPoster stands for a front end whose digest reaches the channel while
+// a chart or a private message fails.
+type partPoster struct {
+	mu    sync.Mutex
+	posts int
+}
+
+func (p *partPoster) PostReply(context.Context, string, string, bot.Reply) error {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	p.posts++
+	return fmt.Errorf("%w: slack conversations.open: user_not_found", slackfront.ErrPartlyPosted)
+}
+
+// A digest that went out in part is not posted again: the job neither
+// retries it nor lets the engine release the week for a later run.
+func TestDigestPartlyPostedIsNotRepeated(t *testing.T) {
+	env := func(k string) string { return map[string]string{"TMPDIR": t.TempDir()}[k] }
+	cfg, err := parseConfig([]string{"--data", filepath.Join(t.TempDir(), "d.db")}, env, io.Discard)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, err := newApp(context.Background(), cfg, stdio{strings.NewReader(""), io.Discard, io.Discard})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer a.Close()
+	for _, line := range []string{"digest channel C0JUMPS01", "athlete add Kai height 1.86"} {
+		if r := a.engine.Handle(context.Background(), botReq(line)); !r.OK() {
+			t.Fatalf("%s: %+v", line, r)
+		}
+	}
+	poster := &partPoster{}
+	job := digestJob{engine: a.engine, poster: poster, log: a.log, waits: []time.Duration{time.Millisecond, time.Millisecond}}
+	week := digestWeek(t, "2026-W48")
+	for i := range 2 {
+		if err := job.PostDigest(context.Background(), week, time.Now(), false); err != nil {
+			t.Fatalf("run %d: %v", i, err)
+		}
+	}
+	if poster.posts != 1 {
+		t.Errorf("digest posted %d times, want 1", poster.posts)
+	}
+	if posted, err := a.engine.DigestPosted(context.Background(), week); err != nil || !posted {
+		t.Errorf("week recorded as posted: %v, %v; want true", posted, err)
+	}
+}
+
+// countJob counts digest posts for the scheduler.
+type countJob struct {
+	mu    sync.Mutex
+	weeks []digest.Week
+}
+
+func (j *countJob) PostDigest(_ context.Context, week digest.Week, _ time.Time, _ bool) error {
+	j.mu.Lock()
+	defer j.mu.Unlock()
+	j.weeks = append(j.weeks, week)
+	return nil
+}
+
+type noneLedger struct{}
+
+func (noneLedger) Posted(digest.Week) (bool, error) { return false, nil }
+
+type fixedNow time.Time
+
+func (c fixedNow) Now() time.Time { return time.Time(c) }
+
+// `digest on` shortly after the slot posts that week's digest (followTeam
+// sets the switch before Reschedule starts its catch-up check; the check
+// runs in the background, so the old order was a race, one this test
+// rarely loses). A settings change during shutdown, when the scheduler has
+// stopped, is not logged as an error (the old code logged ErrStopped).
+func TestFollowTeam(t *testing.T) {
+	now := time.Date(2026, 11, 30, 7, 30, 0, 0, time.UTC) // Monday, 30 min after the 07:00 slot
+	job := &countJob{}
+	var logs syncBuffer
+	sched, err := weekly.New(weekly.Config{Day: time.Monday, Minute: 420, Off: true, Clock: fixedNow(now), Job: job, Ledger: noneLedger{}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := sched.Start(context.Background()); err != nil {
+		t.Fatal(err)
+	}
+	follow := followTeam(sched, slog.New(slog.NewTextHandler(&logs, nil)))
+	follow(record.Team{DigestDay: time.Monday, DigestMinute: 420})
+	sched.Stop() // waits for the check Reschedule started
+	follow(record.Team{DigestDay: time.Monday, DigestMinute: 420})
+	job.mu.Lock()
+	n := len(job.weeks)
+	job.mu.Unlock()
+	if n != 1 {
+		t.Errorf("%d digests posted after digest on, want 1", n)
+	}
+	if strings.Contains(logs.String(), "level=ERROR") {
+		t.Errorf("logged %s", logs.String())
 	}
 }

@@ -48,7 +48,8 @@ type Users interface {
 type Poster interface {
 	// PostReply posts r in channel (a channel id), in the thread threadTS when
 	// it is not empty, with its files and its direct messages. Ephemeral is
-	// ignored: there is no asker to show it to.
+	// ignored: there is no asker to show it to. An error that wraps
+	// ErrPartlyPosted means part of r did go out: do not post r again.
 	PostReply(ctx context.Context, channel, threadTS string, r bot.Reply) error
 }
 

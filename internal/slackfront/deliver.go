@@ -17,17 +17,26 @@ import (
 // allows five responses per slash command, within 30 minutes; from memory).
 const maxResponseURLPosts = 5
 
+// ErrPartlyPosted is wrapped by the error of PostReply (and of the front
+// end's own replies) when part of the reply reached Slack before the
+// failure: its message but not a file or a direct message, say. Posting the
+// reply again would repeat what already went out, so a caller that retries
+// failed posts must not retry one with this error.
+var ErrPartlyPosted = errors.New("slack: the reply was posted in part")
+
 // PostReply posts r in channel, in thread threadTS when it is not empty,
 // with its files and its direct messages; see Poster. Rate limits are
-// retried within Config.MaxAttempts and Config.MaxRetryWait; what still
-// fails is returned (joined), so the caller can try again later. Parts
-// posted before a failure stay posted.
+// retried within Config.MaxAttempts and Config.MaxRetryWait. If the first
+// part fails, nothing else is tried and the error is returned, so the
+// caller can try the whole reply again later. A failure after some part was
+// posted is returned wrapping ErrPartlyPosted (the rest was still tried):
+// the posted parts stay posted, and trying again would repeat them.
 func (f *Front) PostReply(ctx context.Context, channel, threadTS string, r bot.Reply) error {
 	if channel == "" {
 		return errors.New("slack: PostReply needs a channel id")
 	}
-	if err := f.deliver(ctx, target{channel: channel, threadTS: threadTS}, r); err != nil {
-		f.log.Error("posting a reply failed", "channel", channel, "err", err)
+	if err := f.deliver(ctx, target{channel: channel, threadTS: threadTS, allOrNothing: true}, r); err != nil {
+		f.log.Error("posting a reply failed", "channel", channel, "partly_posted", errors.Is(err, ErrPartlyPosted), "err", err)
 		return err
 	}
 	return nil
@@ -35,11 +44,25 @@ func (f *Front) PostReply(ctx context.Context, channel, threadTS string, r bot.R
 
 // deliver posts a reply to its target: the messages (ephemeral to the asker
 // when the reply asks for it and there is an asker outside a direct
-// message), then the files, then the direct messages.
+// message), then the files, then the direct messages. A failure after
+// something was posted wraps ErrPartlyPosted.
 func (f *Front) deliver(ctx context.Context, t target, r bot.Reply) error {
+	posted, err := f.deliverParts(ctx, t, r)
+	if err != nil && posted {
+		return fmt.Errorf("%w: %w", ErrPartlyPosted, err)
+	}
+	return err
+}
+
+// deliverParts does deliver's work and reports whether any part reached
+// Slack. With t.allOrNothing it stops at a failure while nothing has been
+// posted yet, so that a retry of the whole reply repeats nothing; otherwise
+// it goes on with the other parts (best effort for an asker's reply).
+func (f *Front) deliverParts(ctx context.Context, t target, r bot.Reply) (posted bool, _ error) {
 	msgs := Messages(r)
 	ephemeral := r.Ephemeral && t.user != "" && !t.direct
 	var errs []error
+	stop := func() bool { return t.allOrNothing && !posted && len(errs) > 0 }
 
 	if t.responseURL != "" && len(msgs) > 0 && len(msgs) <= maxResponseURLPosts {
 		if !f.responseURLAllowed(t.responseURL) {
@@ -51,6 +74,7 @@ func (f *Front) deliver(ctx context.Context, t target, r bot.Reply) error {
 			if err != nil {
 				f.log.Warn("response_url failed; posting the rest through the Web API", "err", err, "posted", n)
 			}
+			posted = posted || n > 0
 			msgs = msgs[n:]
 		}
 	}
@@ -65,6 +89,10 @@ func (f *Front) deliver(ctx context.Context, t target, r bot.Reply) error {
 			errs = append(errs, err)
 			break // the rest would arrive out of context
 		}
+		posted = true
+	}
+	if stop() {
+		return false, errors.Join(errs...)
 	}
 
 	if len(r.Files) > 0 {
@@ -83,27 +111,41 @@ func (f *Front) deliver(ctx context.Context, t target, r bot.Reply) error {
 			for _, file := range r.Files {
 				if err := f.upload(ctx, channel, thread, file); err != nil {
 					errs = append(errs, err)
+				} else {
+					posted = true
+				}
+				if stop() {
+					return false, errors.Join(errs...)
 				}
 			}
 		}
 	}
+	if stop() {
+		return false, errors.Join(errs...)
+	}
 
 	for _, d := range r.Direct {
-		if err := f.sendDirect(ctx, d); err != nil {
+		sent, err := f.sendDirect(ctx, d)
+		posted = posted || sent
+		if err != nil {
 			errs = append(errs, err)
 		}
+		if stop() {
+			return false, errors.Join(errs...)
+		}
 	}
-	return errors.Join(errs...)
+	return posted, errors.Join(errs...)
 }
 
-// sendDirect opens a direct message with one user and posts a reply there.
-func (f *Front) sendDirect(ctx context.Context, d bot.Direct) error {
+// sendDirect opens a direct message with one user and posts a reply there;
+// sent reports whether any of it reached Slack.
+func (f *Front) sendDirect(ctx context.Context, d bot.Direct) (sent bool, _ error) {
 	if d.UserID == "" {
-		return errors.New("slack: a direct message without a user id")
+		return false, errors.New("slack: a direct message without a user id")
 	}
 	dm, err := f.openDM(ctx, d.UserID)
 	if err != nil {
-		return err
+		return false, err
 	}
 	r := d.Reply
 	if len(r.Direct) > 0 {
@@ -111,7 +153,7 @@ func (f *Front) sendDirect(ctx context.Context, d bot.Direct) error {
 		r.Direct = nil
 	}
 	r.Ephemeral = false
-	return f.deliver(ctx, target{channel: dm, direct: true}, r)
+	return f.deliverParts(ctx, target{channel: dm, direct: true}, r)
 }
 
 func msgOptions(threadTS string, m Message) []slack.MsgOption {

@@ -213,3 +213,65 @@ func TestUserCache(t *testing.T) {
 		t.Fatalf("fallback to the real name: %q", name)
 	}
 }
+
+// TestPostReplyPartialFailure: PostReply's caller (the digest job) retries
+// a failed post, so PostReply must say whether part of the reply already
+// went out. A channel post that fails stops the reply before any file or
+// direct message (a retry then repeats nothing); a direct message that
+// fails after the channel post wraps ErrPartlyPosted, and the other direct
+// messages are still sent.
+func TestPostReplyPartialFailure(t *testing.T) {
+	reply := func() bot.Reply {
+		return bot.Reply{
+			Title: "Week 48",
+			Files: []bot.File{{Name: "w48.csv", MIME: "text/csv", Data: []byte("bar,result\n1.95,o\n")}},
+			Direct: []bot.Direct{
+				{UserID: "U0KAI", Reply: bot.Reply{Title: "Your week"}},
+				{UserID: "U0MIRA", Reply: bot.Reply{Title: "Your week"}},
+			},
+		}
+	}
+	noRetry := func(c *Config) { c.MaxAttempts = 1 }
+
+	t.Run("channel post fails", func(t *testing.T) {
+		fs := newFakeSlack(t)
+		fs.limited["chat.postMessage"] = 1
+		f := posterFront(t, fs, noRetry)
+		err := f.PostReply(t.Context(), "C0JUMPS", "", reply())
+		if err == nil || errors.Is(err, ErrPartlyPosted) {
+			t.Fatalf("err = %v, want a plain failure (nothing posted)", err)
+		}
+		if n := len(fs.callsOf("files.getUploadURLExternal")); n != 0 {
+			t.Errorf("%d uploads after the channel post failed", n)
+		}
+		if n := len(fs.callsOf("conversations.open")); n != 0 {
+			t.Errorf("%d direct messages opened after the channel post failed", n)
+		}
+	})
+	t.Run("a direct message fails after the post", func(t *testing.T) {
+		fs := newFakeSlack(t)
+		fs.limited["conversations.open"] = 1 // the first direct message only
+		f := posterFront(t, fs, noRetry)
+		err := f.PostReply(t.Context(), "C0JUMPS", "", reply())
+		if !errors.Is(err, ErrPartlyPosted) {
+			t.Fatalf("err = %v, want ErrPartlyPosted", err)
+		}
+		var channels []string
+		for _, c := range fs.callsOf("chat.postMessage") {
+			channels = append(channels, c.Form.Get("channel"))
+		}
+		if strings.Join(channels, ",") != "C0JUMPS,DU0MIRA" {
+			t.Errorf("posted in %v, want the channel and the second direct message", channels)
+		}
+		if n := len(fs.callsOf("files.completeUploadExternal")); n != 1 {
+			t.Errorf("%d files shared, want 1", n)
+		}
+	})
+	t.Run("everything posted", func(t *testing.T) {
+		fs := newFakeSlack(t)
+		f := posterFront(t, fs, noRetry)
+		if err := f.PostReply(t.Context(), "C0JUMPS", "", reply()); err != nil {
+			t.Fatal(err)
+		}
+	})
+}

@@ -48,5 +48,8 @@
 //
 // Rate limits: a *slack.RateLimitedError is retried after its RetryAfter, at
 // most Config.MaxAttempts times and never for longer than Config.MaxRetryWait;
-// a post that still fails is logged and returned as an error.
+// a post that still fails is logged and returned as an error. PostReply
+// stops at a first part that fails (nothing went out, so the caller may try
+// the whole reply again); a failure after some part was posted wraps
+// ErrPartlyPosted, and trying again would repeat what went out.
 package slackfront

@@ -38,6 +38,9 @@ type target struct {
 	user        string // the asker, for ephemeral replies; "" when there is none
 	direct      bool   // channel is a direct message with the asker
 	responseURL string // a slash command's response_url, tried first
+	// allOrNothing stops a delivery at its first failure while nothing is
+	// posted yet (PostReply: its caller may retry the whole reply).
+	allOrNothing bool
 }
 
 // eventKeys are the dedup ids of a message event: its event id and the

@@ -10,6 +10,7 @@ import (
 
 // cleanText turns a Slack message text into a command line: mentions of
 // the bot itself (<@UBOT> or <@UBOT|name>) are removed wherever they stand,
+// with the colon or comma people put after a leading one ("@clearbot: help"),
 // Slack's three entities (&amp; &lt; &gt;) are decoded, and the result is
 // trimmed. Other mentions stay: the engine resolves <@U123> to a person.
 func cleanText(text, botUserID string) string {
@@ -26,19 +27,39 @@ func cleanText(text, botUserID string) string {
 			}
 			token := text[i : i+end+1]
 			id, _, _ := strings.Cut(strings.TrimSuffix(strings.TrimPrefix(token, "<@"), ">"), "|")
+			leading := strings.TrimSpace(b.String()+text[:i]) == ""
 			b.WriteString(text[:i])
-			if id == botUserID {
-				b.WriteByte(' ')
-			} else {
-				b.WriteString(token)
-			}
 			text = text[i+end+1:]
+			if id != botUserID {
+				b.WriteString(token)
+				continue
+			}
+			b.WriteByte(' ')
+			if leading {
+				text = trimAddressMark(text)
+			}
 		}
 		b.WriteString(text)
 		text = b.String()
 	}
 	text = strings.NewReplacer("&lt;", "<", "&gt;", ">", "&amp;", "&").Replace(text)
 	return strings.Join(strings.Fields(text), " ")
+}
+
+// trimAddressMark removes the colon or comma that follows a leading
+// mention of the bot: right after it ("<@UBOT>:help"), or after spaces when
+// a space or the end follows ("<@UBOT> , help"), which keeps an emoji code
+// such as ":x:" whole.
+func trimAddressMark(text string) string {
+	if strings.HasPrefix(text, ":") || strings.HasPrefix(text, ",") {
+		return text[1:]
+	}
+	rest := strings.TrimLeft(text, " \t")
+	if (strings.HasPrefix(rest, ":") || strings.HasPrefix(rest, ",")) &&
+		(len(rest) == 1 || rest[1] == ' ' || rest[1] == '\t' || rest[1] == '\n') {
+		return rest[1:]
+	}
+	return text
 }
 
 // tsTime converts a Slack timestamp ("1531420618.000200": Unix seconds and

@@ -16,6 +16,12 @@ func TestCleanText(t *testing.T) {
 		{"athlete link Mira <@U0MIRA>", "athlete link Mira <@U0MIRA>"},
 		{"<@UBOTX> hi", "<@UBOTX> hi"}, // another user whose id starts like ours
 		{"log Kai 5&apos;10 &lt;x&gt; &amp;", "log Kai 5&apos;10 <x> &"},
+		{"<@UBOT>: help", "help"},
+		{" <@UBOT|clearbot> , history Kai 6w", "history Kai 6w"},
+		{"<@UBOT> <@UBOT>: help", "help"},
+		{"log Kai <@UBOT>: 1.95 o", "log Kai : 1.95 o"}, // only a leading mention takes its colon
+		{"<@UBOT>:help", "help"},
+		{"<@UBOT> :x: not a colon after the mention", ":x: not a colon after the mention"},
 		{"<@UBOT", "<@UBOT"},
 		{"", ""},
 	}
