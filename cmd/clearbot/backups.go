@@ -24,6 +24,27 @@ const (
 	backupSuffix = ".db"
 )
 
+// seenKeep is how long handled message ids are remembered. Slack
+// re-delivers within minutes; a month covers any retry after an outage. A CSV
+// import of older rows still skips duplicates by comparing the attempts.
+const seenKeep = 30 * 24 * time.Hour
+
+// pruneSeen forgets message ids handled longer ago than seenKeep, so the
+// record does not grow without end.
+func pruneSeen(ctx context.Context, db *store.DB, now time.Time, log *slog.Logger) error {
+	var n int
+	err := db.Update(ctx, func(tx *store.Tx) error {
+		var err error
+		n, err = tx.PruneSeen(now.Add(-seenKeep))
+		return err
+	})
+	if err != nil {
+		return fmt.Errorf("prune handled message ids: %w", err)
+	}
+	log.Info("handled message ids pruned", "removed", n)
+	return nil
+}
+
 // teamReader gives the current team settings.
 type teamReader interface {
 	Team(ctx context.Context) (record.Team, error)

@@ -70,3 +70,33 @@ func TestNightlyBackupOff(t *testing.T) {
 		t.Fatal(err)
 	}
 }
+
+func TestPruneSeen(t *testing.T) {
+	db, err := store.Open(filepath.Join(t.TempDir(), "live.db"), store.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	now := time.Date(2026, 12, 1, 2, 30, 0, 0, time.UTC)
+	ctx := context.Background()
+	if err := db.Update(ctx, func(tx *store.Tx) error {
+		if err := tx.MarkSeen("old", now.Add(-31*24*time.Hour)); err != nil {
+			return err
+		}
+		return tx.MarkSeen("recent", now.Add(-time.Hour))
+	}); err != nil {
+		t.Fatal(err)
+	}
+	if err := pruneSeen(ctx, db, now, slog.New(slog.DiscardHandler)); err != nil {
+		t.Fatal(err)
+	}
+	db.View(ctx, func(tx *store.Tx) error {
+		if seen, _ := tx.Seen("old"); seen {
+			t.Error("an id from 31 days ago is still remembered")
+		}
+		if seen, _ := tx.Seen("recent"); !seen {
+			t.Error("an id from an hour ago was forgotten")
+		}
+		return nil
+	})
+}

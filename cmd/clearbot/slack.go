@@ -40,7 +40,8 @@ func (a *app) runSlack(ctx context.Context) error {
 		return err
 	}
 	if err := sched.AddDaily("nightly backup", backupMinute, func(ctx context.Context) error {
-		return nightlyBackup(ctx, a.db, a.engine, time.Now(), a.log)
+		now := time.Now()
+		return errors.Join(pruneSeen(ctx, a.db, now, a.log), nightlyBackup(ctx, a.db, a.engine, now, a.log))
 	}); err != nil {
 		return err
 	}
