@@ -535,7 +535,11 @@ func runAthleteLink(c *call) (Reply, error) {
 	if len(c.args) != 2 {
 		return Reply{}, usageErr(ex, "give an athlete and a chat user (me, or a mention)")
 	}
-	who := c.args[1].Raw
+	name, who := c.args[0].Raw, c.args[1].Raw
+	if isUserWord(name) && !isUserWord(who) {
+		// "athlete link @mira Mira" or "athlete link me Kai": the same link.
+		name, who = who, name
+	}
 	uid := who
 	switch {
 	case strings.EqualFold(who, "me"):
@@ -546,10 +550,13 @@ func runAthleteLink(c *call) (Reply, error) {
 	if uid == "" {
 		return Reply{}, usageErr(ex, "I can't tell who %q is; use me or an @mention", who)
 	}
-	var a record.Athlete
+	var (
+		a        record.Athlete
+		replaced string // the athlete this chat user was linked to before
+	)
 	err := c.update(func(tx Tx) error {
 		var err error
-		if a, err = c.findAthlete(tx, c.args[0].Raw); err != nil {
+		if a, err = c.findAthlete(tx, name); err != nil {
 			return err
 		}
 		u, ok, err := tx.User(uid)
@@ -563,6 +570,13 @@ func runAthleteLink(c *call) (Reply, error) {
 			}
 		}
 		before := u
+		if u.AthleteID != 0 && u.AthleteID != a.ID {
+			if old, found, err := tx.AthleteByID(u.AthleteID); err != nil {
+				return err
+			} else if found {
+				replaced = old.Name
+			}
+		}
 		u.AthleteID = a.ID
 		if u.Role == record.RoleNone {
 			u.Role = record.RoleAthlete
@@ -575,7 +589,17 @@ func runAthleteLink(c *call) (Reply, error) {
 	if err != nil {
 		return Reply{}, err
 	}
-	return Reply{Title: "Linked " + a.Name, Lines: []string{fmt.Sprintf("Chat user %s is now %s: `me` means %s for them, and they may log their own jumps.", uid, a.Name, a.Name)}}, nil
+	r := Reply{Title: "Linked " + a.Name, Lines: []string{fmt.Sprintf("Chat user %s is now %s: `me` means %s for them, and they may log their own jumps.", uid, a.Name, a.Name)}}
+	if replaced != "" {
+		r.Lines = append(r.Lines, fmt.Sprintf("%s was linked to %s until now; a chat user is one athlete, so that link is gone (`athlete link %s %s` puts it back).", uid, replaced, replaced, who))
+	}
+	return r, nil
+}
+
+// isUserWord reports whether a word names a chat user (me or a mention)
+// rather than an athlete.
+func isUserWord(w string) bool {
+	return strings.EqualFold(w, "me") || isMention(w) || strings.HasPrefix(w, "@")
 }
 
 func runAthleteUnlink(c *call) (Reply, error) {

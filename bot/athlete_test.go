@@ -5,6 +5,7 @@ import (
 	"math"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/clearbot-team/clearbot/bot"
 	"github.com/clearbot-team/clearbot/internal/record"
@@ -194,5 +195,65 @@ func TestDuplicateMessageLogsOnce(t *testing.T) {
 	second := te.E.Handle(context.Background(), req)
 	if !first.OK() || second.Title != "Already done" {
 		t.Fatalf("first %q, second %q", first.Title, second.Title)
+	}
+}
+
+// TestLinkWordOrderAndReplace: the chat user may come first, and moving a
+// chat user to another athlete says which link went.
+func TestLinkWordOrderAndReplace(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Lu height 1.70")
+	te.must("athlete add Ren height 1.80")
+	r := te.must("athlete link <@U_LU> Lu")
+	if r.Title != "Linked Lu" {
+		t.Errorf("mention first: %s", plain(r))
+	}
+	if r := te.must("athlete link me Ren"); r.Title != "Linked Ren" {
+		t.Errorf("me first: %s", plain(r))
+	}
+	if strings.Contains(plain(r), "until now") {
+		t.Errorf("a first link claims to replace one:\n%s", plain(r))
+	}
+	r = te.must("athlete link Ren <@U_LU>")
+	contains(t, r, "was linked to Lu until now", "athlete link Lu <@U_LU>")
+	if got := te.as("U_LU", "athlete me"); got.Title != "Ren" {
+		t.Errorf("me after the move is %q", got.Title)
+	}
+}
+
+// TestTeamZoneAndAltitudeAsTyped: zone names in any case, a city alone
+// gets a suggestion (never applied silently), and the venue altitude may be
+// typed in feet (1 ft = 0.3048 m exactly, NIST Handbook 44, Appendix C).
+func TestTeamZoneAndAltitudeAsTyped(t *testing.T) {
+	if _, err := time.LoadLocation("Europe/Madrid"); err != nil {
+		t.Skip("no time zone data:", err)
+	}
+	te := newTestEngine(t)
+	for _, tt := range []struct{ line, want string }{
+		{"team tz europe/madrid", "Europe/Madrid"},
+		{"team tz AMERICA/NEW_YORK", "America/New_York"},
+		{"team tz utc", "UTC"},
+		{"team tz cet", "CET"},
+	} {
+		contains(t, te.must(tt.line), "Time zone:  "+tt.want)
+	}
+	before := te.checksum()
+	r := te.run("team tz Madrid")
+	if r.OK() || r.Example != "team tz Europe/Madrid" {
+		t.Errorf("city alone: %s", plain(r))
+	}
+	contains(t, r, "did you mean Europe/Madrid?")
+	if te.checksum() != before {
+		t.Error("a refused zone changed the store")
+	}
+
+	// 2133 ft = 650.1 m.
+	contains(t, te.must("team location lat 40.4 alt 2133ft"), "altitude 650 m")
+	te.must("team units imperial")
+	contains(t, te.must("team location lat 40.4 alt 650"), "altitude 2133 ft = 650 m")
+	for _, bad := range []string{"team location lat 40.4 alt high", "team location lat 40.4 alt 20000ft"} {
+		if r := te.run(bad); r.Kind != bot.KindUsage || r.Example == "" {
+			t.Errorf("%q: %s", bad, plain(r))
+		}
 	}
 }

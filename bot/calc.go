@@ -160,7 +160,7 @@ func (env calcEnv) gravityField(vzMS float64) (Field, error) {
 	if !env.local {
 		return Field{"Gravity", "9.80665 m/s² (standard)"}, nil
 	}
-	v := fmt.Sprintf("%.4f m/s² at the venue (latitude %.2f°, altitude %.0f m)", env.gMS2, env.team.LatDeg, env.team.AltM)
+	v := fmt.Sprintf("%.4f m/s² at the venue (latitude %.2f°, altitude %s)", env.gMS2, env.team.LatDeg, altitudeText(env.team.AltM, env.imp))
 	if vzMS > 0 {
 		d, err := mechanics.RiseChange(vzMS, mechanics.StandardGravity, env.gMS2)
 		if err != nil {

@@ -94,15 +94,15 @@ func runFlight(c *call) (Reply, error) {
 	case hasH0 && hasMat && mat > tk.H0M+rise:
 		return Reply{}, usageErr("flight v 4.4 h0 1.25 mat 0.70", "the mat top %s is above the c.m. peak %s; give a lower mat", calcFine(mat, imp), calcFine(tk.H0M+rise, imp))
 	case hasH0 && mat > tk.H0M+rise:
-		notes = append(notes, fmt.Sprintf("the c.m. never rises to the %s mat top, so no landing time is shown (add mat H for a lower one)", units.Length(mat, imp)))
+		notes = append(notes, fmt.Sprintf("the c.m. never rises to the %s mat top, so no landing time is shown (add mat H for a lower one)", flightLength(mat, imp)))
 	case hasH0:
 		tLand, err := tk.FlightTimeTo(mat)
 		if err != nil {
 			return Reply{}, calcErr(err, ex)
 		}
-		add(fmt.Sprintf("Flight time, c.m. down to mat-top height %s", units.Length(mat, imp)), fmt.Sprintf("%.3f s", tLand))
+		add(fmt.Sprintf("Flight time, c.m. down to mat-top height %s", flightLength(mat, imp)), fmt.Sprintf("%.3f s", tLand))
 		if !hasMat {
-			notes = append(notes, fmt.Sprintf("landing-mat top %s, the rules' minimum landing-area height (add mat H to set it)", units.Length(matTopM, imp)))
+			notes = append(notes, fmt.Sprintf("landing-mat top %s, the rules' minimum landing-area height (add mat H to set it)", flightLength(matTopM, imp)))
 		}
 	default:
 		notes = append(notes, "no h0 given: the c.m. peak and the time to the mat need the take-off c.m. height (add h0 1.25)")
@@ -126,6 +126,16 @@ func runFlight(c *call) (Reply, error) {
 	return r, nil
 }
 
+// flightLength formats a height in a flight reply: "0.70 m" in metric, and
+// in imperial inches to a tenth ("27.6 in"), the unit of the reply's other
+// heights, rather than feet-inches rounded to the inch.
+func flightLength(m float64, imp bool) string {
+	if imp {
+		return calcFine(m, imp)
+	}
+	return units.Length(m, imp)
+}
+
 // runJumpTestCmd is `jump test T` (or `jump test time T`).
 func runJumpTestCmd(c *call) (Reply, error) {
 	const ex = "jump test 0.60"
@@ -146,6 +156,11 @@ func runJumpTestCmd(c *call) (Reply, error) {
 	}
 	return jumpTest(c, t, "jump test", ex)
 }
+
+// bentKneeInflationM is how much landing with bent knees inflated the
+// flight-time height in one published comparison, about 2.5 cm (as given in
+// the project's shared reference notes on Bosco et al. 1983).
+const bentKneeInflationM = 0.025
 
 // jumpTest answers a jump-test flight time with the height h = g·t²/8
 // (Bosco, Luhtanen and Komi, 1983) and the take-off speed g·t/2.
@@ -181,7 +196,7 @@ func jumpTest(c *call, tS float64, key, ex string) (Reply, error) {
 	r.Fields = append(r.Fields, g)
 	r.Lines = []string{
 		"Valid only for jump tests that take off and land in the same posture (e.g. countermovement jumps on a mat); not for a high jump, whose landing is far below the take-off.",
-		"Landing with bent knees or hips lengthens the flight and inflates the height (by about 2.5 cm in one published comparison).",
+		fmt.Sprintf("Landing with bent knees or hips lengthens the flight and inflates the height (by about %s in one published comparison).", units.SmallAbs(bentKneeInflationM, env.imp)),
 	}
 	r.Assumptions = []string{"the c.m. lands at its take-off height", env.gravityAssumption()}
 	return r, nil

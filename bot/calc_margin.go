@@ -187,10 +187,10 @@ func runMargin(c *call) (Reply, error) {
 		when := att.Time.In(env.loc).Format("Mon 2 Jan")
 		if att.VzMS > 0 {
 			vz = att.VzMS
-			notes = append(notes, fmt.Sprintf("vz %s from %s's attempt at %s on %s, the latest with a measured vz or peak in 8 weeks (v VZ overrides it)", calcSpeed(vz), env.athlete.Name, units.Bar(att.BarM, imp), when))
+			notes = append(notes, fmt.Sprintf("vz %s from %s's attempt at %s on %s, the latest with a measured vz or peak in 8 weeks (v VZ overrides it)", calcSpeed(vz), env.athlete.Name, units.Length(att.BarM, imp), when))
 		} else {
 			peak = att.PeakM
-			notes = append(notes, fmt.Sprintf("peak %s from %s's attempt at %s on %s, the latest with a measured vz or peak in 8 weeks (v VZ or peak P overrides it)", units.Length(peak, imp), env.athlete.Name, units.Bar(att.BarM, imp), when))
+			notes = append(notes, fmt.Sprintf("peak %s from %s's attempt at %s on %s, the latest with a measured vz or peak in 8 weeks (v VZ or peak P overrides it)", units.Length(peak, imp), env.athlete.Name, units.Length(att.BarM, imp), when))
 		}
 	case env.athlete != nil:
 		return Reply{}, usageErr("margin "+units.Bar(m.barM, imp)+" for "+env.athlete.Name+" v 4.3", "%s has no logged attempt with a peak or vz in the last 8 weeks; give v VZ (take-off vertical speed, m/s) or peak P (c.m. peak)", env.athlete.Name)

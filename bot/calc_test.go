@@ -176,6 +176,27 @@ func TestCalcImperial(t *testing.T) {
 	r = te.run("com for Mira")
 	contains(t, r, " in below the underside")
 	golden(t, "calc-com-imperial", plain(r))
+
+	// Flight and jump test in imperial: every length in inches, none in
+	// metres or centimetres. The rules' 0.70 m mat top is 27.6 in (0.70 /
+	// 0.0254, NIST Handbook 44, Appendix C); the bent-knee inflation of
+	// about 2.5 cm (shared reference notes, Bosco et al. 1983) is 1.0 in.
+	for _, tt := range []struct {
+		line  string
+		wants []string
+	}{
+		{"flight v 4.4 h0 1.25", []string{"mat-top height 27.6 in", "landing-mat top 27.6 in", "(h0 49.2 in + rise)"}},
+		{"flight time 0.60", []string{"by about 1.0 in in one published comparison"}},
+	} {
+		r := te.must(tt.line)
+		contains(t, r, tt.wants...)
+		p := strings.ReplaceAll(plain(r), "m/s", "")
+		for _, metric := range []string{" m ", " m,", " m)", " cm"} {
+			if strings.Contains(p, metric) {
+				t.Errorf("%q in imperial shows metric %q:\n%s", tt.line, metric, plain(r))
+			}
+		}
+	}
 }
 
 // TestCalcRefusals: each bad input gets one clear refusal naming the
@@ -328,7 +349,7 @@ func TestCalcFromLoggedAttempt(t *testing.T) {
 	if !r.OK() {
 		t.Fatalf("refused:\n%s", plain(r))
 	}
-	contains(t, r, "peak 2.05 m from Mira's attempt at 1.78 on Mon 16 Nov")
+	contains(t, r, "peak 2.05 m from Mira's attempt at 1.78 m on Mon 16 Nov")
 	// Working from a peak, the c.m. height used is the peak itself.
 	if got := calcNums(t, calcField(t, r, "C.m. peak"))[0]; got != 2.05 {
 		t.Errorf("peak shown %v, want the logged 2.05", got)

@@ -187,6 +187,10 @@ func (c *call) audit(tx Tx, action, subject string, before, after any) error {
 func (c *call) findAthlete(tx Tx, name string) (record.Athlete, error) {
 	if strings.EqualFold(name, "me") || isMention(name) && mentionID(name) == c.user.ID {
 		if c.user.AthleteID == 0 {
+			if rank(c.user.Role) < rank(record.RoleCoach) {
+				// athlete link is a coach's command: name who can run it.
+				return record.Athlete{}, notFoundErr("whoami", "you are not linked to an athlete yet; a coach links you with `athlete link NAME @you`, or name the athlete instead of me")
+			}
 			return record.Athlete{}, notFoundErr("athlete link Mira me", "you are not linked to an athlete yet")
 		}
 		a, ok, err := tx.AthleteByID(c.user.AthleteID)

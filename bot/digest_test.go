@@ -137,3 +137,17 @@ func TestDigestCommands(t *testing.T) {
 		}
 	}
 }
+
+// TestDigestLinesCarryUnits: bars in the digest's sentences carry their
+// unit (the table's columns stay compact); imperial teams see feet-inches.
+func TestDigestLinesCarryUnits(t *testing.T) {
+	te := newTestEngine(t)
+	digestSquad(t, te)
+	r := te.must("digest now")
+	// The totals leave the private Ines out, while the preview's table shows her.
+	contains(t, r, "1 athlete jumped: 6 attempts, 2 cleared, make rate 33% (not counting 1 private athlete).")
+	contains(t, r, "Mira 1.65 m season best", "Ceiling (highest bar made on at least half its tries, 8 weeks): Ines 1.50 m, Mira 1.65 m.")
+	te.must("team units imperial")
+	// 1.65 m = 64.96 in, 5-5 to the inch (1 in = 0.0254 m, NIST Handbook 44).
+	contains(t, te.must("digest now"), "Mira 5-5 season best", "Ines 4-11, Mira 5-5.")
+}

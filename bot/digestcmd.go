@@ -251,6 +251,11 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 		if v, ok := tt.MakeRate.Value(); ok {
 			line += fmt.Sprintf(", make rate %.0f%%", 100*v)
 		}
+		if tt.PrivateExcluded > 0 {
+			// The totals leave private athletes out (so their numbers cannot
+			// be worked out by subtraction); say so beside rows that show them.
+			line += fmt.Sprintf(" (not counting %s)", plural(tt.PrivateExcluded, "private athlete"))
+		}
 		r.Lines = append(r.Lines, line+".")
 	}
 	table := &Table{Header: []string{"athlete", "O-X", "make", "best", "coach", "model", "trend/wk"}}
@@ -266,12 +271,12 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 		table.Rows = append(table.Rows, digestRow(a, imp))
 		switch {
 		case a.PersonalBest:
-			bests = append(bests, a.Name+" "+units.Bar(a.BestM, imp)+" personal best")
+			bests = append(bests, a.Name+" "+units.Length(a.BestM, imp)+" personal best")
 		case a.SeasonBest:
-			bests = append(bests, a.Name+" "+units.Bar(a.BestM, imp)+" season best")
+			bests = append(bests, a.Name+" "+units.Length(a.BestM, imp)+" season best")
 		}
 		if a.Ceiling.OK {
-			ceilings = append(ceilings, a.Name+" "+units.Bar(a.Ceiling.BarM, imp))
+			ceilings = append(ceilings, a.Name+" "+units.Length(a.Ceiling.BarM, imp))
 		}
 	}
 	if len(table.Rows) > 0 {
@@ -438,7 +443,7 @@ func runDigestChannel(c *call) (Reply, error) {
 	if _, err := c.updateTeam("digest channel", func(t *record.Team) error { t.DigestChannel = ch; return nil }); err != nil {
 		return Reply{}, err
 	}
-	return Reply{Title: "Digest channel set", Lines: []string{"The weekly digest will be posted in " + c.args[0].Raw + ". Invite the bot to that channel if it is not there yet."}}, nil
+	return Reply{Title: "Digest channel set", Lines: []string{"The weekly digest will be posted in " + channelLabel(ch) + ". Invite the bot to that channel if it is not there yet."}}, nil
 }
 
 // channelLabel shows a stored channel: Slack's mention form for an id, #name otherwise.

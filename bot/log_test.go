@@ -262,7 +262,7 @@ func TestLogMeetSeriesAndNumbers(t *testing.T) {
 	r := te.must("log Kai 2.00 o meet")
 	contains(t, r, "The meet so far: 2.00 xo.")
 	r = te.must("log Kai 2.04 xxx meet")
-	contains(t, r, "Series over for Kai: three consecutive failures, the last at 2.04.")
+	contains(t, r, "Series over for Kai: three consecutive failures, the last at 2.04 m.")
 	w := te.must("log Kai 2.06 o meet")
 	golden(t, "log-meet-warning", plain(w))
 	contains(t, w, "Warning: Kai's series had already ended")
@@ -489,4 +489,122 @@ func TestHelpLogDescribesMeasurements(t *testing.T) {
 	r := te.must("help log")
 	golden(t, "log-help", plain(r))
 	contains(t, r, "go with the jump written just before them", "history", "export csv", "import csv", "undo")
+}
+
+// TestCoachMarginAgainstOutcome: a positive coach's margin on a miss, or a
+// negative one on a clearance, is kept as typed but the reply says how it
+// was read and what to type instead; agreeing signs get no note. (A bar can
+// come down after the c.m. passed high enough, knocked by a heel or an arm,
+// and a touched bar can stay up: common practice.)
+func TestCoachMarginAgainstOutcome(t *testing.T) {
+	tests := []struct {
+		line    string
+		imp     bool
+		note    bool
+		wants   []string
+		marginM float64
+	}{
+		{"log Mira 1.70 x by 2cm", false, true, []string{"1.70 attempt 1 is a miss (x)", "+2.0 cm is positive", "heel or arm", "by -2cm"}, 0.02},
+		{"log Mira 1.70 xo by -1.5cm", false, true, []string{"1.70 attempt 2 is a clearance (o)", "-1.5 cm is negative", "by 1.5cm"}, -0.015},
+		{"log Mira 5-7 x by 1in", true, true, []string{"5-7 attempt 1 is a miss (x)", "+1.0 in is positive", "by -1in"}, 0.0254},
+		{"log Mira 1.70 o by 3cm", false, false, nil, 0.03},
+		{"log Mira 1.70 x by -2cm", false, false, nil, -0.02},
+	}
+	for _, tt := range tests {
+		t.Run(tt.line, func(t *testing.T) {
+			te := newTestEngine(t)
+			logAddAthlete(t, te.DB, logMira())
+			if tt.imp {
+				logSetTeam(t, te.DB, record.Team{Units: record.Imperial})
+			}
+			r := te.must(tt.line)
+			p := plain(r)
+			if got := strings.Contains(p, "Note: "); got != tt.note {
+				t.Fatalf("note shown %v, want %v:\n%s", got, tt.note, p)
+			}
+			contains(t, r, tt.wants...)
+			as := logAttempts(t, te.DB, "Mira")
+			if last := as[len(as)-1]; !last.HasCoachMargin || math.Abs(last.CoachMarginM-tt.marginM) > 1e-12 {
+				t.Errorf("stored margin %v, want %v as typed", last.CoachMarginM, tt.marginM)
+			}
+			if tt.imp && strings.Contains(p, " cm") {
+				t.Errorf("imperial reply shows centimetres:\n%s", p)
+			}
+		})
+	}
+	// The suggested correction is itself a working log line.
+	te := newTestEngine(t)
+	logAddAthlete(t, te.DB, logMira())
+	te.must("log Mira 1.70 x by 2cm")
+	te.must("undo")
+	if r := te.must("log Mira 1.70 x by -2cm"); strings.Contains(plain(r), "Note: ") {
+		t.Errorf("the suggested line still gets the note:\n%s", plain(r))
+	}
+}
+
+// TestLogZeroForO: a zero typed for the letter o is refused with the
+// notation spelled right, and nothing is stored.
+func TestLogZeroForO(t *testing.T) {
+	te := newTestEngine(t)
+	logAddAthlete(t, te.DB, logMira())
+	for _, tt := range []struct{ line, want string }{
+		{"log Mira 1.70 0", "write o"},
+		{"log Mira 1.70 x0", "write xo"},
+		{"log Mira 1.70 xx0", "write xxo"},
+	} {
+		before := te.checksum()
+		r := te.run(tt.line)
+		if r.Kind != bot.KindUsage {
+			t.Errorf("%q: kind %v:\n%s", tt.line, r.Kind, plain(r))
+		}
+		contains(t, r, "zero (0)", tt.want)
+		if te.checksum() != before {
+			t.Errorf("%q changed the store", tt.line)
+		}
+	}
+}
+
+// TestHistoryWordOrder: the window may stand before or after the name;
+// extra words and date windows are refused with the form to use.
+func TestHistoryWordOrder(t *testing.T) {
+	te := newTestEngine(t)
+	logAddAthlete(t, te.DB, logMira())
+	logAddAthlete(t, te.DB, logKai())
+	te.must("log Mira 1.70 o")
+	for _, line := range []string{"history 6w Mira", "history 6 weeks Mira", "history Mira 6w", "History MIRA 6W"} {
+		r := te.must(line)
+		if r.Title != "History of Mira: last 6 weeks" {
+			t.Errorf("%q: title %q", line, r.Title)
+		}
+	}
+	for _, tt := range []struct{ line, want string }{
+		{"history Mira since 2026-11-01", "export csv Mira since"},
+		{"history Mira Kai", `"Kai"`},
+		{"history Mira 30d", "in weeks"},
+	} {
+		r := te.run(tt.line)
+		if r.Kind != bot.KindUsage {
+			t.Errorf("%q: kind %v:\n%s", tt.line, r.Kind, plain(r))
+		}
+		contains(t, r, tt.want)
+	}
+}
+
+// TestLogModelAssumptionsInTeamUnits: the model margin's defaults are
+// stated in the team's units (h0 = 0.70 × stature: 0.70 × 1.78 m = 1.246 m
+// = 49.1 in, shown 4-1; NIST Handbook 44, Appendix C for 1 in = 0.0254 m).
+func TestLogModelAssumptionsInTeamUnits(t *testing.T) {
+	te := newTestEngine(t)
+	logAddAthlete(t, te.DB, logMira())
+	r := te.must("log Mira 1.70 o vz 4.0")
+	contains(t, r, "take-off c.m. height assumed 1.25 m = 0.70 × stature", "assumed 11.1 cm = half a typical trunk depth")
+	logSetTeam(t, te.DB, record.Team{Units: record.Imperial})
+	r = te.must("log Mira 5-7 o vz 4.0")
+	contains(t, r, "take-off c.m. height assumed 4-1 = 0.70 × stature", "stature 5-10", "in = half a typical trunk depth")
+	p := plain(r)
+	for _, metric := range []string{" m ", " m;", " m,", " cm"} {
+		if strings.Contains(strings.ReplaceAll(p, "m/s", ""), metric) {
+			t.Errorf("imperial log reply shows metric %q:\n%s", metric, p)
+		}
+	}
 }

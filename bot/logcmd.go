@@ -221,7 +221,7 @@ func logReply(ath record.Athlete, ln logLine, jumps []loggedJump, today, sameKin
 	made, tried := madeCount(all)
 	summary := "Today: "
 	if b, ok := bestCleared(all); ok {
-		summary += "best " + units.Bar(b.BarM, imp) + ", "
+		summary += "best " + barText(b.BarM, imp) + ", "
 	} else {
 		summary += "nothing cleared yet, "
 	}
@@ -254,6 +254,9 @@ func logReply(ath record.Athlete, ln logLine, jumps []loggedJump, today, sameKin
 		}
 		if a.HasCoachMargin {
 			parts = append(parts, "coach's margin "+units.Small(a.CoachMarginM, imp))
+			if n := marginSignNote(a, label, imp); n != "" {
+				r.Lines = append(r.Lines, n)
+			}
 		}
 		if j.model.ok {
 			parts = append(parts, "model margin "+units.Small(j.model.marginM, imp)+" ± "+units.SmallAbs(j.model.sigmaM, imp))
@@ -285,6 +288,32 @@ func logReply(ath record.Athlete, ln logLine, jumps []loggedJump, today, sameKin
 		r.Caution = "The model margin is an estimate from a simple body model; the bar and the coach's eye decide."
 	}
 	return r
+}
+
+// marginSignNote flags a coach's margin whose sign disagrees with the
+// attempt's outcome: a positive margin on a miss (x) or a negative one on a
+// clearance (o). Both happen (the c.m. passed high enough but a heel or arm
+// took the bar down; the bar was touched and stayed up), so the margin is
+// kept as typed and the reply says how it was read and how to change it.
+func marginSignNote(a record.Attempt, label string, imp bool) string {
+	switch {
+	case a.Outcome == record.Failed && a.CoachMarginM > 0:
+		return fmt.Sprintf("Note: %s is a miss (x) but the coach's margin %s is positive. Kept as typed: read as the body passing high enough while a heel or arm brought the bar down. If the jump was short, `undo` and log the line again with by %s.",
+			label, units.Small(a.CoachMarginM, imp), typedSmall(-a.CoachMarginM, imp))
+	case a.Outcome == record.Cleared && a.CoachMarginM < 0:
+		return fmt.Sprintf("Note: %s is a clearance (o) but the coach's margin %s is negative. Kept as typed: read as the bar touched and staying up. If it cleared with room, `undo` and log the line again with by %s.",
+			label, units.Small(a.CoachMarginM, imp), typedSmall(-a.CoachMarginM, imp))
+	}
+	return ""
+}
+
+// typedSmall writes a small signed length the way it is typed after `by`:
+// "-2cm", "3.5cm" or "-0.8in", to a tenth of the unit.
+func typedSmall(m float64, imp bool) string {
+	if imp {
+		return strconv.FormatFloat(math.Round(m/units.MetresPerInch*10)/10, 'f', -1, 64) + "in"
+	}
+	return strconv.FormatFloat(math.Round(m*1000)/10, 'f', -1, 64) + "cm"
 }
 
 // plural writes "1 jump", "3 jumps".
@@ -522,39 +551,44 @@ func (c *call) restorePB(tx Tx, ath *record.Athlete, l record.Line) (bool, error
 	return true, c.audit(tx, auditUndoPB, ath.Name, old, *ath)
 }
 
-// historyWeeks reads a trailing "6w", "6 weeks" or "6" off the arguments.
+// historyWeeks takes the window off the arguments wherever it stands:
+// "6w", "6wk", "6weeks", "6 weeks", or a bare "6" after the name
+// ("history Kai 6"). A number with another unit ("30d", "2m") is refused
+// with the form to use; what is left is the athlete.
 func historyWeeks(args []token, example string) ([]token, int, error) {
-	n := len(args)
-	if n == 0 {
-		return args, historyDefaultWeeks, nil
-	}
-	num, unit := args[n-1].Lower, ""
-	rest := args[:n-1]
-	switch args[n-1].Lower {
-	case "w", "wk", "wks", "week", "weeks":
-		if n < 2 {
-			return args, historyDefaultWeeks, nil
+	for i, t := range args {
+		digits := strings.TrimRightFunc(t.Lower, func(r rune) bool { return r < '0' || r > '9' })
+		if digits == "" || strings.TrimLeft(digits, "0123456789") != "" {
+			continue
 		}
-		num, unit, rest = args[n-2].Lower, args[n-1].Lower, args[:n-2]
+		suffix, span := t.Lower[len(digits):], 1
+		if suffix == "" && i+1 < len(args) && isWeekWord(args[i+1].Lower) {
+			suffix, span = args[i+1].Lower, 2
+		}
+		switch {
+		case suffix == "" && i == 0:
+			continue // a name that is a number; findAthlete answers it
+		case suffix == "" || isWeekWord(suffix):
+		default:
+			return nil, 0, usageErr(example, "%q: give the window in weeks, e.g. 6w (for dates, export csv NAME since 2026-09-01)", t.Raw)
+		}
+		w, err := strconv.Atoi(digits)
+		if err != nil || w < 1 || w > historyMaxWeeks {
+			return nil, 0, usageErr(example, "%q: history covers 1 to %d weeks", joinRaw(args[i:i+span]), historyMaxWeeks)
+		}
+		rest := append(append([]token(nil), args[:i]...), args[i+span:]...)
+		return rest, w, nil
 	}
-	digits := strings.TrimRightFunc(num, func(r rune) bool { return r < '0' || r > '9' })
-	suffix := num[len(digits):]
-	if digits == "" || strings.TrimLeft(digits, "0123456789") != "" {
-		return args, historyDefaultWeeks, nil
+	return args, historyDefaultWeeks, nil
+}
+
+// isWeekWord is a unit word for weeks.
+func isWeekWord(w string) bool {
+	switch w {
+	case "w", "wk", "wks", "week", "weeks":
+		return true
 	}
-	switch suffix {
-	case "", "w", "wk", "wks", "week", "weeks":
-	default:
-		return nil, 0, usageErr(example, "%q: give the window in weeks, e.g. 6w", args[n-1].Raw)
-	}
-	if suffix == "" && unit == "" && len(rest) == 0 {
-		return args, historyDefaultWeeks, nil
-	}
-	w, err := strconv.Atoi(digits)
-	if err != nil || w < 1 || w > historyMaxWeeks {
-		return nil, 0, usageErr(example, "%q: history covers 1 to %d weeks", strings.TrimSpace(num+" "+unit), historyMaxWeeks)
-	}
-	return rest, w, nil
+	return false
 }
 
 func runHistory(c *call) (Reply, error) {
@@ -564,8 +598,14 @@ func runHistory(c *call) (Reply, error) {
 		return Reply{}, err
 	}
 	name := "me"
-	if len(args) > 0 {
-		name = joinRaw(args)
+	switch {
+	case len(args) == 1:
+		name = args[0].Raw
+	case len(args) > 1:
+		if strings.EqualFold(args[1].Raw, "since") {
+			return Reply{}, usageErr(example, "history counts back in weeks (6w); for attempts since a date, export csv %s since 2026-09-01", args[0].Raw)
+		}
+		return Reply{}, unknownWords(args[1:], example, "history takes one athlete (or me) and a window in weeks")
 	}
 	var r Reply
 	err = c.view(func(tx Tx) error {

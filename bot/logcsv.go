@@ -223,7 +223,8 @@ func runExportCSV(c *call) (Reply, error) {
 
 // importRefusal lists what is wrong with a CSV; nothing was stored.
 type importRefusal struct {
-	lines []string
+	lines   []string
+	example string // what to type next; "" shows the export as the model file
 }
 
 func (e *importRefusal) Error() string { return strings.Join(e.lines, "; ") }
@@ -530,7 +531,11 @@ func (c *call) importCSV(source string, data []byte, progress func(done, total i
 	})
 	var ir *importRefusal
 	if errors.As(err, &ir) {
-		return Reply{Kind: KindUsage, Title: "Not imported", Lines: ir.lines, Example: "export csv", Ephemeral: true}, nil
+		ex := ir.example
+		if ex == "" {
+			ex = "export csv"
+		}
+		return Reply{Kind: KindUsage, Title: "Not imported", Lines: ir.lines, Example: ex, Ephemeral: true}, nil
 	}
 	if err != nil {
 		return Reply{}, err
@@ -552,6 +557,7 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 	cache := map[string]known{}
 	var all []string
 	var unknown []string
+	toAdd := "" // the first unknown name that is not a typo of a known one
 	for i, row := range rows {
 		key := strings.ToLower(strings.Join(strings.Fields(row.athlete), " "))
 		k, done := cache[key]
@@ -579,6 +585,8 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 			msg := fmt.Sprintf("row %d: no athlete called %q", row.row, row.athlete)
 			if s, ok := nearest(row.athlete, all); ok {
 				msg += fmt.Sprintf(" (did you mean %s?)", s)
+			} else if toAdd == "" {
+				toAdd = row.athlete
 			}
 			problems = append(problems, msg)
 			continue
@@ -591,7 +599,11 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 		if len(unknown) > 0 {
 			extra = append(extra, fmt.Sprintf("Unknown athletes: %s. Add them first (athlete add NAME height H) or correct the names.", strings.Join(unknown, ", ")))
 		}
-		return Reply{}, refuseRows(problems, extra...)
+		ir := refuseRows(problems, extra...)
+		if toAdd != "" {
+			ir.example = "athlete add " + strings.Join(strings.Fields(toAdd), "-") + " height 1.80"
+		}
+		return Reply{}, ir
 	}
 	total := len(rows)
 	if progress != nil {
@@ -715,6 +727,15 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 	}
 	if progress != nil {
 		progress(total, total)
+	}
+	if len(keys) == 0 {
+		// Nothing stored, so no line to undo: saying `undo` here would
+		// take back the coach's previous line instead.
+		line := fmt.Sprintf("All %s in %s are already stored (the message id was handled before, or the same attempt is logged); nothing changed.", plural(dups, "row"), source)
+		if dups == 0 {
+			line = fmt.Sprintf("%s holds no attempt rows; nothing changed.", source)
+		}
+		return Reply{Title: "Nothing new imported", Lines: []string{line}}, nil
 	}
 	r := Reply{Title: "Imported", Lines: []string{
 		fmt.Sprintf("Imported %s for %s from %s.", plural(len(keys), "attempt"), plural(len(per), "athlete"), source),

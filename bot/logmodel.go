@@ -6,6 +6,7 @@ import (
 
 	"github.com/clearbot-team/clearbot/internal/mechanics"
 	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/clearbot-team/clearbot/internal/units"
 )
 
 // logArchDeg is the body arch the log assumes for the model margin when a
@@ -26,7 +27,9 @@ type jumpModel struct {
 // logged attempt from its c.m. peak (preferred: measured from video) or its
 // vertical take-off velocity, with the athlete's stature, the default arch
 // and body depth, and the venue's gravity (standard gravity without a
-// venue). The c.m. is taken at its peak over the bar: the approach speed
+// venue). The defaults (h0 = 0.70 × stature, d = half a typical trunk
+// depth) are the ones mechanics.Margin would take, stated here in the team's
+// units. The c.m. is taken at its peak over the bar: the approach speed
 // is not the take-off's horizontal velocity, so the bar-plane correction is
 // not used.
 //
@@ -38,6 +41,7 @@ func modelMargin(a record.Attempt, ath record.Athlete, team record.Team) jumpMod
 	if ath.StatureM == 0 {
 		return jumpModel{why: fmt.Sprintf("no model margin: %s's profile has no height (athlete set %s height 1.80)", ath.Name, ath.Name)}
 	}
+	imp := imperial(team)
 	in := mechanics.MarginInput{
 		BarM:     a.BarM,
 		StatureM: ath.StatureM,
@@ -45,18 +49,38 @@ func modelMargin(a record.Attempt, ath record.Athlete, team record.Team) jumpMod
 		DepthM:   ath.BodyDepthM,
 		Sigma:    mechanics.DefaultUncertainty(),
 	}
+	// The defaults are taken here rather than inside mechanics.Margin, so
+	// that the reply can state them in the team's units.
+	notes := []string{fmt.Sprintf("model margin: arc model, body arch %d° over a body length of the stature %s, c.m. peak over the bar", logArchDeg, units.Length(ath.StatureM, imp))}
 	if a.PeakM > 0 {
 		in.PeakM = a.PeakM
+		if a.VzMS > 0 {
+			notes = append(notes, "the measured peak was used, not vz")
+		}
 	} else {
 		in.VzMS = a.VzMS
+		in.H0M = mechanics.TakeoffHeightFraction * ath.StatureM
+		notes = append(notes, fmt.Sprintf("take-off c.m. height assumed %s = %.2f × stature", units.Length(in.H0M, imp), mechanics.TakeoffHeightFraction))
 	}
-	var notes []string
+	if in.DepthM == 0 {
+		d, err := mechanics.DefaultUndersideDepth(ath.StatureM)
+		if err != nil {
+			return jumpModel{why: fmt.Sprintf("no model margin: height %s: %v", units.Length(ath.StatureM, imp), err)}
+		}
+		in.DepthM = d
+		notes = append(notes, fmt.Sprintf("body depth (midline to underside) assumed %s = half a typical trunk depth (athlete set %s depth D sets it)", units.SmallAbs(d, imp), ath.Name))
+	} else {
+		notes = append(notes, fmt.Sprintf("body depth %s from %s's profile", units.SmallAbs(in.DepthM, imp), ath.Name))
+	}
 	if team.HasLocation {
 		g, err := mechanics.NormalGravity(team.LatDeg, team.AltM)
 		if err == nil {
 			in.GMS2 = g
 			notes = append(notes, fmt.Sprintf("gravity %.4f m/s² at the team's venue", g))
 		}
+	}
+	if in.GMS2 == 0 {
+		notes = append(notes, fmt.Sprintf("standard gravity %.5f m/s² (no venue set)", mechanics.StandardGravity))
 	}
 	res, err := mechanics.Margin(in)
 	if err != nil {
@@ -66,10 +90,5 @@ func modelMargin(a record.Attempt, ath record.Athlete, team record.Team) jumpMod
 		}
 		return jumpModel{why: "no model margin: " + err.Error()}
 	}
-	notes = append(notes, fmt.Sprintf("model margin: arc model, body arch %d°, c.m. peak over the bar", logArchDeg))
-	if a.PeakM > 0 && a.VzMS > 0 {
-		notes = append(notes, "the measured peak was used, not vz")
-	}
-	notes = append(notes, res.Assumptions...)
 	return jumpModel{ok: true, marginM: res.MarginM, sigmaM: res.SigmaM, assumptions: notes}
 }

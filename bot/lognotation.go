@@ -210,6 +210,10 @@ func barRangeText() string {
 // parseBarWord reads a bar height, optionally with its notation glued on
 // ("1.80xo"). ok is false when the word is not bar-like.
 func parseBarWord(raw, lower, example string) (barM float64, glued []record.Outcome, ok bool, err error) {
+	if strings.Trim(lower, "0ox-") == "" && strings.Contains(lower, "0") {
+		// "1.70 0" or "1.75 x0": a zero typed for the letter o.
+		return 0, nil, true, usageErr(example, "%q has a zero (0) where the notation needs the letter o (cleared); write %s", raw, strings.ReplaceAll(lower, "0", "o"))
+	}
 	if !logBarLike(lower) {
 		return 0, nil, false, nil
 	}

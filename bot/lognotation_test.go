@@ -261,13 +261,13 @@ func TestMeetReview(t *testing.T) {
 		warn      []string
 		note      []string
 	}{
-		{"2.00 xx", "2.04 x", nil, []string{"Series over for Kai: three consecutive failures, the last at 2.04."}},
+		{"2.00 xx", "2.04 x", nil, []string{"Series over for Kai: three consecutive failures, the last at 2.04 m."}},
 		{"2.00 xx-", "2.04 x", nil, []string{"Series over"}},
 		{"2.00 xxx", "2.04 o", []string{"already ended"}, nil},
-		{"2.00 o", "2.00 x", []string{"2.00 was already cleared"}, nil},
-		{"2.00 x-", "2.00 o", []string{"2.00 was already passed"}, nil},
+		{"2.00 o", "2.00 x", []string{"2.00 m was already cleared"}, nil},
+		{"2.00 x-", "2.00 o", []string{"2.00 m was already passed"}, nil},
 		{"2.00 xx", "2.00 xx", []string{"series had already ended", "4 attempts at 2.00"}, []string{"Series over"}},
-		{"2.04 o", "2.00 o", []string{"2.00 is below 2.04"}, nil},
+		{"2.04 o", "2.00 o", []string{"2.00 m is below 2.04 m"}, nil},
 		{"1.95 o 2.00 xo", "2.04 xo", nil, nil},
 		{"", "2.00 xxo", nil, nil},
 	}

@@ -189,10 +189,10 @@ func meetReview(prev, add []record.Attempt, athlete string, imperial bool) (warn
 		st := state(a.BarM)
 		isNew := i >= len(prev)
 		if isNew {
-			bar := units.Bar(a.BarM, imperial)
+			bar := units.Length(a.BarM, imperial)
 			if ended && !warnedEnded {
 				warnedEnded = true
-				warnings = append(warnings, fmt.Sprintf("%s's series had already ended after three consecutive failures (last at %s); a competition ends there. Stored as typed; `undo` removes this line if it was a slip.", athlete, units.Bar(endedAt, imperial)))
+				warnings = append(warnings, fmt.Sprintf("%s's series had already ended after three consecutive failures (last at %s); a competition ends there. Stored as typed; `undo` removes this line if it was a slip.", athlete, units.Length(endedAt, imperial)))
 			}
 			if st.tries+1 > logMaxTries && !st.warnedMax {
 				st.warnedMax = true
@@ -208,7 +208,7 @@ func meetReview(prev, add []record.Attempt, athlete string, imperial bool) (warn
 			}
 			if len(prev) > 0 && higherBar(topPrev, a.BarM) && !warnedLower {
 				warnedLower = true
-				warnings = append(warnings, fmt.Sprintf("%s is below %s, jumped earlier at this meet; in a competition the bar only goes up.", bar, units.Bar(topPrev, imperial)))
+				warnings = append(warnings, fmt.Sprintf("%s is below %s, jumped earlier at this meet; in a competition the bar only goes up.", bar, units.Length(topPrev, imperial)))
 			}
 		} else {
 			topPrev = max(topPrev, a.BarM)
@@ -226,7 +226,7 @@ func meetReview(prev, add []record.Attempt, athlete string, imperial bool) (warn
 		if streak >= seriesEndRun && !ended {
 			ended, endedAt = true, a.BarM
 			if isNew {
-				notes = append(notes, fmt.Sprintf("Series over for %s: three consecutive failures, the last at %s.", athlete, units.Bar(a.BarM, imperial)))
+				notes = append(notes, fmt.Sprintf("Series over for %s: three consecutive failures, the last at %s.", athlete, units.Length(a.BarM, imperial)))
 			}
 		}
 	}

@@ -58,6 +58,7 @@ func (c *call) userRef(w string) string {
 
 func runRole(c *call) (Reply, error) {
 	const ex = "role coach @sam"
+	c.args = joinHeadCoach(c.args)
 	if len(c.args) != 2 {
 		return Reply{}, usageErr(ex, "give a role (head, coach, athlete or none) and a chat user")
 	}
@@ -107,7 +108,20 @@ func runRole(c *call) (Reply, error) {
 	if role == record.RoleNone {
 		return Reply{Title: "Role withdrawn", Lines: []string{uid + " may now use the calculations only."}}, nil
 	}
-	return Reply{Title: "Role granted", Lines: []string{fmt.Sprintf("%s is now a %s.", uid, roleName(role))}}, nil
+	return Reply{Title: "Role granted", Lines: []string{fmt.Sprintf("%s is now %s.", uid, withArticle(roleName(role)))}}, nil
+}
+
+// joinHeadCoach reads the two words "head coach" (in either place of the
+// line) as the one role word "head", so `role head coach @sam` grants the
+// head-coach role rather than stumbling over three words.
+func joinHeadCoach(args []token) []token {
+	for i := 0; i+1 < len(args); i++ {
+		if args[i].Lower == "head" && (args[i+1].Lower == "coach" || args[i+1].Lower == "coaches") {
+			out := append(append([]token(nil), args[:i+1]...), args[i+2:]...)
+			return out
+		}
+	}
+	return args
 }
 
 func countRole(tx Tx, r record.Role) (int, error) {
@@ -316,7 +330,7 @@ func runForget(c *call) (Reply, error) {
 	name := exp.Athlete.Name
 	return Reply{
 		Title:     "Forgot " + name,
-		Lines:     []string{fmt.Sprintf("%d records deleted: the profile, %d jumps and %d chat links. The export below is the only copy the bot keeps; hand it to the athlete or their guardian and keep it safe.", removed, len(exp.Attempts), len(exp.Users))},
+		Lines:     []string{fmt.Sprintf("%s deleted: the profile, %s and %s. The export below is the only copy the bot keeps; hand it to the athlete or their guardian and keep it safe.", plural(removed, "record"), plural(len(exp.Attempts), "jump"), plural(len(exp.Users), "chat link"))},
 		Ephemeral: true,
 		Files:     []File{{Name: "clearbot-forget-" + strings.ToLower(name) + ".json", MIME: "application/json", Title: "Data of " + name, Data: data}},
 		Caution:   "Backups made before today still hold this athlete's data; delete or let them expire as your data policy says.",

@@ -169,3 +169,36 @@ func TestRemoveNeedsHeadCoachAndIsAudited(t *testing.T) {
 	te.must("athlete remove Kai confirm")
 	contains(t, te.must("audit"), "athlete remove", "Kai")
 }
+
+// TestRoleWordsAsTyped: "head coach" as two words, in either place, and
+// each reply with its right article.
+func TestRoleWordsAsTyped(t *testing.T) {
+	te := newTestEngine(t)
+	for _, tt := range []struct{ line, want string }{
+		{"role head coach <@U_A>", "U_A is now a head coach."},
+		{"role <@U_B> head coach", "U_B is now a head coach."},
+		{"role athlete <@U_C>", "U_C is now an athlete."},
+		{"role coach <@U_D>", "U_D is now a coach."},
+	} {
+		contains(t, te.must(tt.line), tt.want)
+	}
+	if r := te.run("role head coach"); r.Kind != bot.KindUsage {
+		t.Errorf("no user: %s", plain(r))
+	}
+}
+
+// TestNotLinkedHintFitsTheRole: the hint for `me` without a link names a
+// command the speaker may run.
+func TestNotLinkedHintFitsTheRole(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Mira height 1.78")
+	te.must("role coach <@U_COACH>")
+	if r := te.as("U_COACH", "history me"); r.Example != "athlete link Mira me" {
+		t.Errorf("coach: %s", plain(r))
+	}
+	r := te.as("U_ANYONE", "margin 1.80 for me v 4.3")
+	if r.Example != "whoami" {
+		t.Errorf("member: %s", plain(r))
+	}
+	contains(t, r, "a coach links you")
+}

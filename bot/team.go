@@ -2,10 +2,13 @@ package bot
 
 import (
 	"fmt"
+	"math"
+	"strconv"
 	"strings"
 	"time"
 
 	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/clearbot-team/clearbot/internal/units"
 )
 
 func teamCommands() []command {
@@ -18,7 +21,7 @@ func teamCommands() []command {
 			usage: "team tz ZONE", example: "team tz Europe/Madrid", summary: "the team's time zone (IANA name); days and the digest follow it", run: runTeamTZ},
 		{name: "team location", aliases: []string{"team venue"}, topic: "team", access: headOnly,
 			usage: "team location lat DEG [alt M] | team location off", example: "team location lat 40.4 alt 650",
-			summary: "the venue, for local gravity (WGS84 normal gravity)", run: runTeamLocation},
+			summary: "the venue, for local gravity (WGS84 normal gravity); alt in metres, or in feet as 2100ft", run: runTeamLocation},
 		{name: "team name", topic: "team", access: headOnly,
 			usage: "team name TEXT", example: "team name Harbour Lane AC", summary: "the name shown on the digest", run: runTeamName},
 		{name: "team backup", topic: "team", access: headOnly,
@@ -93,7 +96,7 @@ func teamReply(title string, t record.Team) Reply {
 	}
 	add("Time zone", tz)
 	if t.HasLocation {
-		add("Venue", fmt.Sprintf("latitude %.2f°, altitude %.0f m (local gravity)", t.LatDeg, t.AltM))
+		add("Venue", fmt.Sprintf("latitude %.2f°, altitude %s (local gravity)", t.LatDeg, altitudeText(t.AltM, imperial(t))))
 	} else {
 		add("Venue", "not set (standard gravity 9.80665 m/s²)")
 	}
@@ -131,12 +134,13 @@ func runTeamTZ(c *call) (Reply, error) {
 	if len(c.args) != 1 {
 		return Reply{}, usageErr(ex, "give one IANA time-zone name")
 	}
-	name := c.args[0].Raw
-	if strings.EqualFold(name, "utc") {
-		name = "UTC"
-	}
-	if _, err := time.LoadLocation(name); err != nil || name == "" || name == "Local" {
-		return Reply{}, usageErr(ex, "%q is not a time zone I know; use an IANA name like Europe/Madrid or America/Chicago", name)
+	typed := c.args[0].Raw
+	name, ok := resolveZone(typed)
+	if !ok {
+		if city, found := zoneForCity(typed); found {
+			return Reply{}, usageErr("team tz "+city, "%q is not a time-zone name; did you mean %s?", typed, city)
+		}
+		return Reply{}, usageErr(ex, "%q is not a time zone I know; use an IANA name like Europe/Madrid or America/Chicago", typed)
 	}
 	t, err := c.updateTeam("team tz", func(t *record.Team) error { t.TZ = name; return nil })
 	if err != nil {
@@ -159,7 +163,7 @@ func runTeamLocation(c *call) (Reply, error) {
 	}
 	o, err := parseOptions(c.args, []optionSpec{
 		{Key: "lat", Aliases: []string{"latitude"}, Kind: kindNumber},
-		{Key: "alt", Aliases: []string{"altitude", "elevation"}, Kind: kindNumber},
+		{Key: "alt", Aliases: []string{"altitude", "elevation"}, Kind: kindWord},
 	}, ex)
 	if err != nil {
 		return Reply{}, err
@@ -174,9 +178,15 @@ func runTeamLocation(c *call) (Reply, error) {
 	if lat < -90 || lat > 90 {
 		return Reply{}, usageErr(ex, "lat %g is outside -90 to 90 degrees", lat)
 	}
-	alt, _ := o.num("alt")
+	var alt float64
+	if w, ok := o.word("alt"); ok {
+		if alt, err = parseAltitude(w); err != nil {
+			return Reply{}, usageErr(ex, "alt %s: %v", w, err)
+		}
+	}
 	if alt < -500 || alt > 5000 {
-		return Reply{}, usageErr(ex, "alt %g m is outside -500 to 5000 m", alt)
+		w, _ := o.word("alt")
+		return Reply{}, usageErr(ex, "alt %s is outside -500 to 5000 m (-1640 to 16404 ft)", w)
 	}
 	t, err := c.updateTeam("team location", func(t *record.Team) error {
 		t.HasLocation, t.LatDeg, t.AltM = true, lat, alt
@@ -186,6 +196,82 @@ func runTeamLocation(c *call) (Reply, error) {
 		return Reply{}, err
 	}
 	return teamReply("Venue set", t), nil
+}
+
+// resolveZone finds the IANA zone a coach meant: as typed, then with the
+// usual capitals ("europe/madrid" is Europe/Madrid, "america/new_york" is
+// America/New_York), then in capitals ("cet", "utc"). "Local" is refused:
+// it would follow the bot's computer, not the team.
+func resolveZone(typed string) (string, bool) {
+	if typed == "" || strings.EqualFold(typed, "local") {
+		return "", false
+	}
+	for _, name := range []string{typed, zoneCapitals(typed), strings.ToUpper(typed)} {
+		if _, err := time.LoadLocation(name); err == nil {
+			return name, true
+		}
+	}
+	return "", false
+}
+
+// zoneCapitals writes each word of a zone name with a capital first letter
+// and the rest small: "america/port_of_spain" becomes America/Port_Of_Spain
+// (IANA keeps "of" small, so that one is still not found; most are).
+func zoneCapitals(s string) string {
+	b := []byte(strings.ToLower(s))
+	up := true
+	for i, ch := range b {
+		if up && ch >= 'a' && ch <= 'z' {
+			b[i] = ch - 'a' + 'A'
+		}
+		up = ch == '/' || ch == '_' || ch == '-'
+	}
+	return string(b)
+}
+
+// zoneForCity finds a zone for a city typed alone ("Madrid"), under the
+// IANA regions, so the refusal can suggest the full name. The suggestion is
+// never applied silently: two regions may hold the same city name.
+func zoneForCity(typed string) (string, bool) {
+	if strings.Contains(typed, "/") {
+		return "", false
+	}
+	city := zoneCapitals(typed)
+	for _, region := range []string{"Europe", "America", "Africa", "Asia", "Australia", "Pacific", "Atlantic", "Indian"} {
+		if _, err := time.LoadLocation(region + "/" + city); err == nil {
+			return region + "/" + city, true
+		}
+	}
+	return "", false
+}
+
+// parseAltitude reads a venue altitude: metres bare or with m ("650",
+// "650m"), or feet with ft or ' ("2100ft"); metres out.
+func parseAltitude(w string) (float64, error) {
+	s := strings.ToLower(strings.TrimSpace(w))
+	factor := 1.0
+	switch {
+	case strings.HasSuffix(s, "ft"):
+		s, factor = strings.TrimSuffix(s, "ft"), units.MetresPerFoot
+	case strings.HasSuffix(s, "'"):
+		s, factor = strings.TrimSuffix(s, "'"), units.MetresPerFoot
+	case strings.HasSuffix(s, "m"):
+		s = strings.TrimSuffix(s, "m")
+	}
+	v, err := strconv.ParseFloat(strings.ReplaceAll(s, ",", "."), 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, fmt.Errorf("not an altitude; give metres (650 or 650m) or feet (2100ft)")
+	}
+	return v * factor, nil
+}
+
+// altitudeText is a venue altitude: "650 m", or in imperial "2133 ft = 650 m"
+// so that the metres the command takes stay visible.
+func altitudeText(altM float64, imp bool) string {
+	if imp {
+		return fmt.Sprintf("%.0f ft = %.0f m", altM/units.MetresPerFoot, altM)
+	}
+	return fmt.Sprintf("%.0f m", altM)
 }
 
 func runTeamName(c *call) (Reply, error) {
