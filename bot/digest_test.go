@@ -23,7 +23,7 @@ func digestSquad(t *testing.T, te *testEngine) {
 	te.must("athlete link Ines <@U_INES>")
 	te.must("role coach <@U_COACH>")
 	// The test clock starts Wednesday 2026-11-25 (ISO week 48).
-	te.must("log Mira 1.60 o 1.65 xo 1.70 xxx by 3cm")
+	te.must("log Mira 1.60 o 1.65 xo by 3cm 1.70 xxx meet")
 	te.must("log Ines 1.50 o 1.55 xxx")
 }
 
@@ -146,8 +146,8 @@ func TestDigestLinesCarryUnits(t *testing.T) {
 	r := te.must("digest now")
 	// The totals leave the private Ines out, while the preview's table shows her.
 	contains(t, r, "1 athlete jumped: 6 attempts, 2 cleared, make rate 33% (not counting 1 private athlete).")
-	contains(t, r, "Mira 1.65 m season best", "Ceiling (highest bar made on at least half its tries, 8 weeks): Ines 1.50 m, Mira 1.65 m.")
+	contains(t, r, "Mira 1.65 m season best (meet)", "Ceiling (highest bar made on at least half its tries, 8 weeks): Ines 1.50 m, Mira 1.65 m.")
 	te.must("team units imperial")
 	// 1.65 m = 64.96 in, 5-5 to the inch (1 in = 0.0254 m, NIST Handbook 44).
-	contains(t, te.must("digest now"), "Mira 5-5 season best", "Ines 4-11, Mira 5-5.")
+	contains(t, te.must("digest now"), "Mira 5-5 season best (meet)", "Ines 4-11, Mira 5-5.")
 }

@@ -269,11 +269,15 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 			continue
 		}
 		table.Rows = append(table.Rows, digestRow(a, imp))
+		meetBest := meetBestOf(a)
 		switch {
 		case a.PersonalBest:
-			bests = append(bests, a.Name+" "+units.Length(a.BestM, imp)+" personal best")
+			bests = append(bests, a.Name+" "+units.Length(meetBest, imp)+" personal best (meet)")
 		case a.SeasonBest:
-			bests = append(bests, a.Name+" "+units.Length(a.BestM, imp)+" season best")
+			bests = append(bests, a.Name+" "+units.Length(meetBest, imp)+" season best (meet)")
+		}
+		if a.PracticeAbovePB {
+			bests = append(bests, a.Name+" "+units.Length(a.BestM, imp)+" in practice, above the personal best")
 		}
 		if a.Ceiling.OK {
 			ceilings = append(ceilings, a.Name+" "+units.Length(a.Ceiling.BarM, imp))
@@ -294,7 +298,7 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 	if len(private) > 0 {
 		r.Lines = append(r.Lines, strings.Join(private, ", ")+": details sent privately.")
 	}
-	r.Lines = append(r.Lines, "O-X: clearances-failures. make: O/(O+X). coach, model: median clearance margin (coach's estimate; mechanics model). trend: fitted change of the weekly best bar, shown only with 4 or more weekly points.")
+	r.Lines = append(r.Lines, "O-X: clearances-failures. make: O/(O+X). PB, SB: personal or season best at a meet; >PB: above the personal best in practice. coach, model: median clearance margin (coach's estimate; mechanics model). trend: fitted change of the weekly best bar, shown only with 4 or more weekly points.")
 	r.Caution = "Trends over a few weeks are a hint, not a verdict; progressions and training load are the coach's call."
 	png, err := digest.Chart(shown, digest.ChartOptions{Imperial: imp, Team: t.Name})
 	switch {
@@ -322,10 +326,14 @@ func digestRow(a digest.AthleteWeek, imp bool) []string {
 	}
 	if a.HasBest {
 		best = units.Bar(a.BestM, imp)
-		if a.PersonalBest {
+		atMeet := meetBestOf(a) == a.BestM
+		switch {
+		case a.PersonalBest && atMeet:
 			best += " PB"
-		} else if a.SeasonBest {
+		case a.SeasonBest && atMeet:
 			best += " SB"
+		case a.PracticeAbovePB:
+			best += " >PB"
 		}
 	}
 	if a.CoachMargin.N > 0 {
@@ -335,6 +343,14 @@ func digestRow(a digest.AthleteWeek, imp bool) []string {
 		model = units.Small(a.ModelMargin.MedianM, imp)
 	}
 	return []string{a.Name, fmt.Sprintf("%d-%d", a.Clearances, a.Failures), make_, best, coach, model, trendCell(a.BestTrend, imp)}
+}
+
+// meetBestOf is the athlete's best meet clearance of the digest week (0 if none).
+func meetBestOf(a digest.AthleteWeek) float64 {
+	if n := len(a.Weeks); n > 0 && a.Weeks[n-1].HasMeetBest {
+		return a.Weeks[n-1].MeetBestM
+	}
+	return 0
 }
 
 // trendCell shows a trend's reading and slope, or why there is none.

@@ -22,6 +22,14 @@ func at(t testing.TB, id uint64, when string, barM float64, o record.Outcome) re
 	return record.Attempt{AthleteID: id, Time: tm, BarM: barM, Outcome: o}
 }
 
+// meet marks attempts as competition jumps, which alone make bests.
+func meet(as ...record.Attempt) []record.Attempt {
+	for i := range as {
+		as[i].Meet = true
+	}
+	return as
+}
+
 func withCoach(a record.Attempt, m float64) record.Attempt {
 	a.HasCoachMargin, a.CoachMarginM = true, m
 	return a
@@ -67,10 +75,10 @@ func handWeek(t testing.TB) ([]record.Athlete, []record.Attempt) {
 	as = append(as, x...)
 	// Ava, 2026-W47: 1.80 o, 1.83 x.
 	as = append(as, at(t, 1, "2026-11-18 18:00", 1.80, record.Cleared), at(t, 1, "2026-11-18 18:10", 1.83, record.Failed))
-	// ben, Tuesday: 1.90 o, 1.96 xo; 2026-W45: 1.92 o.
-	as = append(as, seq(t, 2, "2026-12-01 17:00", 1.90, "o")...)
-	as = append(as, seq(t, 2, "2026-12-01 17:10", 1.96, "xo")...)
-	as = append(as, at(t, 2, "2026-11-04 17:00", 1.92, record.Cleared))
+	// ben, Tuesday, a meet: 1.90 o, 1.96 xo; 2026-W45, a meet: 1.92 o.
+	as = append(as, meet(seq(t, 2, "2026-12-01 17:00", 1.90, "o")...)...)
+	as = append(as, meet(seq(t, 2, "2026-12-01 17:10", 1.96, "xo")...)...)
+	as = append(as, meet(at(t, 2, "2026-11-04 17:00", 1.92, record.Cleared))...)
 	// Cy jumped only in 2026-W46.
 	as = append(as, at(t, 3, "2026-11-11 17:00", 1.50, record.Cleared))
 	// Dee (private) jumped this week.
@@ -255,11 +263,11 @@ func TestNewBuilderConfig(t *testing.T) {
 // does not stop a 2027-W02 best from being the 2027 season best.
 func TestSeasonBestAcrossYear(t *testing.T) {
 	athletes := []record.Athlete{{ID: 1, Name: "Ava"}}
-	as := []record.Attempt{
+	as := meet(
 		at(t, 1, "2026-12-22 17:00", 2.00, record.Cleared), // 2026-W52
 		at(t, 1, "2027-01-05 17:00", 1.85, record.Cleared), // 2027-W01
 		at(t, 1, "2027-01-12 17:00", 1.90, record.Cleared), // 2027-W02
-	}
+	)
 	d := build(t, Config{Week: Week{2027, 2}, TrendWeeks: 6}, athletes, as)
 	a := d.Athletes[0]
 	if !a.SeasonBest || a.SeasonFrom != (Week{2027, 1}) || a.PersonalBest {
@@ -337,4 +345,16 @@ func names(as []AthleteWeek) []string {
 		ns = append(ns, a.Name)
 	}
 	return ns
+}
+
+// Bests are competition clearances: a practice height above the profile's
+// personal best is flagged as such, never as a personal or season best.
+func TestPracticeIsNotABest(t *testing.T) {
+	athletes := []record.Athlete{{ID: 1, Name: "Ava", PersonalBestM: 1.80}}
+	as := []record.Attempt{at(t, 1, "2026-12-01 17:00", 1.83, record.Cleared)}
+	d := build(t, Config{Week: Week{2026, 49}}, athletes, as)
+	a := d.Athletes[0]
+	if a.PersonalBest || a.SeasonBest || !a.PracticeAbovePB {
+		t.Errorf("practice 1.83 over PB 1.80: PB %v SB %v practice-above %v; want only practice-above", a.PersonalBest, a.SeasonBest, a.PracticeAbovePB)
+	}
 }

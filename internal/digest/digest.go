@@ -84,6 +84,8 @@ type weekAgg struct {
 	days                              uint8 // bit d: attempts on local weekday d (Monday = 0)
 	hasBest                           bool
 	bestM                             float64 // highest bar cleared
+	hasMeetBest                       bool
+	meetBestM                         float64 // highest bar cleared at a meet
 	coach, model                      []float64
 }
 
@@ -174,6 +176,9 @@ func (b *Builder) Add(a record.Attempt) error {
 		if !w.hasBest || a.BarM > w.bestM {
 			w.hasBest, w.bestM = true, a.BarM
 		}
+		if a.Meet && (!w.hasMeetBest || a.BarM > w.meetBestM) {
+			w.hasMeetBest, w.meetBestM = true, a.BarM
+		}
 	} else {
 		w.failed++
 		bc.failed++
@@ -247,6 +252,8 @@ type WeekStat struct {
 	Cleared, Failed, Passed  int
 	HasBest                  bool
 	BestM                    float64 // highest bar cleared, m
+	HasMeetBest              bool
+	MeetBestM                float64 // highest bar cleared at a meet, m
 	CoachMargin, ModelMargin MarginStat
 	MakeRate                 Rate
 }
@@ -267,18 +274,27 @@ type AthleteWeek struct {
 	HasBest    bool
 	BestM      float64 // highest bar cleared this week, m
 
-	// PersonalBest: BestM is above the profile's PersonalBestM (by at least
-	// 1 mm). False when the profile gives no personal best, and false if the
-	// profile was already raised to this week's height before the digest.
+	// Bests count competition clearances only, as the trade does: a
+	// height made in practice is not a personal or season best.
+	//
+	// PersonalBest: this week's best meet clearance is above the profile's
+	// PersonalBestM (by at least 1 mm). False when the profile gives no
+	// personal best, and false if the profile was already raised to this
+	// week's height before the digest (logging a meet best raises it).
 	PersonalBest bool
-	// SeasonBest: BestM is above (by at least 1 mm) every clearance in the
-	// earlier weeks of the same season inside the trend window. The season is
+	// PracticeAbovePB: a practice clearance this week is above the
+	// profile's personal best (and no meet clearance is): worth a mention,
+	// not a record.
+	PracticeAbovePB bool
+	// SeasonBest: this week's best meet clearance is above (by at least
+	// 1 mm) every meet clearance in the earlier weeks of the same season
+	// inside the trend window. The season is
 	// the calendar year, taken week by week as the ISO week-numbering year of
 	// the digest week (the two differ by at most three days at New Year: the
 	// days of 2026-W53 that fall in January 2027 count for 2026). SeasonFrom
 	// is the earliest week compared; a jump earlier in the season but before
 	// the trend window is not seen, so a flag late in the year means "best
-	// since SeasonFrom". The first clearance of a season is its best so far.
+	// since SeasonFrom". The first meet clearance of a season is its best so far.
 	// The profile's PersonalBestM plays no part here.
 	SeasonBest bool
 	SeasonFrom Week
@@ -354,6 +370,7 @@ func (b *Builder) athleteWeek(a record.Athlete, ag *athleteAgg) AthleteWeek {
 			ws.Sessions = bits.OnesCount8(w.days)
 			ws.Attempts, ws.Cleared, ws.Failed, ws.Passed = w.attempts, w.cleared, w.failed, w.passed
 			ws.HasBest, ws.BestM = w.hasBest, w.bestM
+			ws.HasMeetBest, ws.MeetBestM = w.hasMeetBest, w.meetBestM
 			ws.CoachMargin = marginStat(w.coach)
 			ws.ModelMargin = marginStat(w.model)
 			ws.MakeRate = Rate{Cleared: w.cleared, Tried: w.cleared + w.failed}
@@ -382,8 +399,8 @@ func (b *Builder) athleteWeek(a record.Athlete, ag *athleteAgg) AthleteWeek {
 	if ag != nil {
 		aw.Ceiling = ceilingOf(ag.bars)
 	}
-	if aw.HasBest {
-		aw.PersonalBest = a.PersonalBestM > 0 && mm(aw.BestM) > mm(a.PersonalBestM)
+	if cur.HasMeetBest {
+		aw.PersonalBest = a.PersonalBestM > 0 && mm(cur.MeetBestM) > mm(a.PersonalBestM)
 		aw.SeasonBest = true
 		for i := b.n - 2; i >= 0; i-- {
 			ws := aw.Weeks[i]
@@ -391,11 +408,12 @@ func (b *Builder) athleteWeek(a record.Athlete, ag *athleteAgg) AthleteWeek {
 				break
 			}
 			aw.SeasonFrom = ws.Week
-			if ws.HasBest && mm(ws.BestM) >= mm(aw.BestM) {
+			if ws.HasMeetBest && mm(ws.MeetBestM) >= mm(cur.MeetBestM) {
 				aw.SeasonBest = false
 			}
 		}
 	}
+	aw.PracticeAbovePB = !aw.PersonalBest && aw.HasBest && a.PersonalBestM > 0 && mm(aw.BestM) > mm(a.PersonalBestM)
 	return aw
 }
 

@@ -75,6 +75,8 @@ func (a AthleteWeek) Lines(imperial bool) []string {
 			l += ": personal best"
 		case a.SeasonBest:
 			l += ": season best (since " + a.SeasonFrom.String() + ")"
+		case a.PracticeAbovePB:
+			l += ": above the personal best, in practice"
 		}
 		ls = append(ls, l)
 	} else {
