@@ -287,18 +287,18 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 		r.Table = table
 	}
 	if len(bests) > 0 {
-		r.Lines = append(r.Lines, "Bests: "+strings.Join(bests, "; ")+".")
+		r.Notes = append(r.Notes, "Bests: "+strings.Join(bests, "; ")+".")
 	}
 	if len(ceilings) > 0 {
-		r.Lines = append(r.Lines, fmt.Sprintf("Ceiling (highest bar made on at least half its tries, %d weeks): %s.", len(d.TrendWeeks), strings.Join(ceilings, ", ")))
+		r.Notes = append(r.Notes, fmt.Sprintf("Ceiling (highest bar made on at least half its tries, %d weeks): %s.", len(d.TrendWeeks), strings.Join(ceilings, ", ")))
 	}
 	if len(d.Idle) > 0 {
-		r.Lines = append(r.Lines, "No jumps this week: "+strings.Join(d.Idle, ", ")+".")
+		r.Notes = append(r.Notes, "No jumps this week: "+strings.Join(d.Idle, ", ")+".")
 	}
 	if len(private) > 0 {
-		r.Lines = append(r.Lines, strings.Join(private, ", ")+": details sent privately.")
+		r.Notes = append(r.Notes, strings.Join(private, ", ")+": details sent privately.")
 	}
-	r.Lines = append(r.Lines, "O-X: clearances-failures. make: O/(O+X). PB, SB: personal or season best at a meet; >PB: above the personal best in practice. coach, model: median clearance margin (coach's estimate; mechanics model). trend: fitted change of the weekly best bar, shown only with 4 or more weekly points.")
+	r.Notes = append(r.Notes, "O-X: clearances-failures. make: O/(O+X). PB, SB: personal or season best at a meet; >PB: above the personal best in practice. coach, model: median clearance margin (coach's estimate; mechanics model). trend: fitted change of the weekly best bar, shown only with 4 or more weekly points.")
 	r.Caution = "Trends over a few weeks are a hint, not a verdict; progressions and training load are the coach's call."
 	png, err := digest.Chart(shown, digest.ChartOptions{Imperial: imp, Team: t.Name})
 	switch {

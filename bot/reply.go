@@ -40,6 +40,7 @@ type Reply struct {
 	Lines       []string // plain sentences, in order
 	Fields      []Field  // label/value pairs, numbers with units
 	Table       *Table   // optional; rendered preformatted
+	Notes       []string // plain sentences shown after the table
 	Assumptions []string // what the engine filled in, and how to override it
 	Caution     string   // a short safety or model caution, shown last
 	Example     string   // for refusals: a correct command to type instead

@@ -18,6 +18,7 @@ func TestRenderAllParts(t *testing.T) {
 		Lines:       []string{"clears"},
 		Fields:      []bot.Field{{Label: "Margin", Value: "+4.0 cm"}, {Label: "C.m. peak", Value: "1.92 m"}},
 		Table:       &bot.Table{Header: []string{"bar", "tries"}, Rows: [][]string{{"1.70", "o"}, {"1.75", "xxo"}}},
+		Notes:       []string{"best 1.75 m"},
 		Assumptions: []string{"arch 90°", "h0 1.25 m"},
 		Example:     "margin 1.80 v 4.3",
 		Caution:     "estimates only",
@@ -36,6 +37,7 @@ func TestRenderAllParts(t *testing.T) {
   bar   tries
   1.70  o
   1.75  xxo
+  best 1.75 m
   assumed: arch 90°; h0 1.25 m
   e.g.  margin 1.80 v 4.3
   ! estimates only

@@ -38,6 +38,9 @@ func Render(w io.Writer, r bot.Reply) error {
 	if r.Table != nil {
 		writeTable(&b, *r.Table)
 	}
+	for _, l := range r.Notes {
+		fmt.Fprintf(&b, "  %s\n", l)
+	}
 	if len(r.Assumptions) > 0 {
 		fmt.Fprintf(&b, "  assumed: %s\n", strings.Join(r.Assumptions, "; "))
 	}

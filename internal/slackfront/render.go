@@ -51,7 +51,7 @@ type Message struct {
 // and keeps every block inside Slack's limits by splitting text into more
 // blocks, never by cutting it; the block list itself may be longer than one
 // message allows (Messages splits it). Order: header (Title), sections
-// (Lines), section fields (Fields), the table, the example, a context block
+// (Lines), section fields (Fields), the table, sections (Notes), the example, a context block
 // for Assumptions and Caution, then the buttons (Actions). Files and Direct
 // are not blocks: the front end uploads and sends them separately.
 func Render(r bot.Reply) ([]slack.Block, string) {
@@ -123,6 +123,9 @@ func Render(r bot.Reply) ([]slack.Block, string) {
 		for _, t := range tableTexts(*r.Table) {
 			section(t)
 		}
+	}
+	for _, t := range pack(escapeAll(r.Notes), maxSectionText) {
+		section(t)
 	}
 
 	if r.Example != "" {

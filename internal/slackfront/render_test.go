@@ -18,6 +18,7 @@ func TestRenderShapes(t *testing.T) {
 		Lines:       []string{"Clears by a little.", "Bar <2.00> & more"},
 		Fields:      []bot.Field{{Label: "Margin", Value: "+4.1 ± 2.3 cm"}, {Label: "Peak c.m.", Value: "2.05 m"}},
 		Table:       &bot.Table{Header: []string{"Bar", "Result"}, Rows: [][]string{{"1.95 m", "o"}, {"2.00 m", "xo"}}},
+		Notes:       []string{"Best 2.00 m."},
 		Assumptions: []string{"take-off c.m. height assumed 1.28 m = 0.69 x stature; add h0 to set it"},
 		Caution:     "A model estimate; the coach decides.",
 		Example:     "margin 2.00 for Kai v 4.4",
@@ -31,7 +32,7 @@ func TestRenderShapes(t *testing.T) {
 	for _, b := range blocks {
 		types = append(types, string(b.BlockType()))
 	}
-	want := "header section section section context context actions"
+	want := "header section section section section context context actions"
 	if got := strings.Join(types, " "); got != want {
 		t.Fatalf("blocks %s, want %s", got, want)
 	}
@@ -46,12 +47,15 @@ func TestRenderShapes(t *testing.T) {
 	if table != "```\nBar     Result\n1.95 m  o\n2.00 m  xo\n```" {
 		t.Fatalf("table %q", table)
 	}
-	ctx := blocks[5].(*slack.ContextBlock).ContextElements.Elements
+	if notes := blocks[4].(*slack.SectionBlock).Text.Text; notes != "Best 2.00 m." {
+		t.Fatalf("notes after the table %q", notes)
+	}
+	ctx := blocks[6].(*slack.ContextBlock).ContextElements.Elements
 	if len(ctx) != 2 || !strings.HasPrefix(ctx[0].(*slack.TextBlockObject).Text, "_Assumed:_ take-off") ||
 		!strings.HasPrefix(ctx[1].(*slack.TextBlockObject).Text, ":warning: A model") {
 		t.Fatalf("context %+v", ctx)
 	}
-	buttons := blocks[6].(*slack.ActionBlock).Elements.ElementSet
+	buttons := blocks[7].(*slack.ActionBlock).Elements.ElementSet
 	b0 := buttons[0].(*slack.ButtonBlockElement)
 	b1 := buttons[1].(*slack.ButtonBlockElement)
 	if b0.ActionID != "clearbot_cmd:0" || b0.Value != "undo" || b0.Style != slack.StyleDanger || b1.ActionID != "clearbot_cmd:1" {
@@ -114,7 +118,7 @@ func bigReplies() map[string]bot.Reply {
 		"wide table":     {Title: "History", Table: &bot.Table{Header: []string{"Id", "Date", "Bar", "Result", "Meet"}, Rows: wideRows}},
 		"many actions":   {Title: "Pick one", Actions: actions},
 		"assumptions":    {Title: "Calc", Assumptions: assumptions, Caution: word("caution", 700), Example: word("ex", 600)},
-		"everything big": {Title: word("t", 30), Lines: []string{word("l", 3000)}, Fields: fields, Table: &bot.Table{Header: []string{"Id", "Bar", "Res"}, Rows: rows}, Assumptions: assumptions, Actions: actions},
+		"everything big": {Title: word("t", 30), Lines: []string{word("l", 3000)}, Notes: []string{word("n", 3000)}, Fields: fields, Table: &bot.Table{Header: []string{"Id", "Bar", "Res"}, Rows: rows}, Assumptions: assumptions, Actions: actions},
 	}
 }
 
@@ -230,6 +234,7 @@ func words(r bot.Reply) []string {
 	var texts []string
 	texts = append(texts, r.Title, r.Caution, r.Example)
 	texts = append(texts, r.Lines...)
+	texts = append(texts, r.Notes...)
 	texts = append(texts, r.Assumptions...)
 	for _, f := range r.Fields {
 		texts = append(texts, f.Label, f.Value)
