@@ -47,18 +47,6 @@ func withDigestDefaults(t record.Team) record.Team {
 	return t
 }
 
-// teamLoc is the team's time zone (UTC when unset or unknown).
-func teamLoc(t record.Team) *time.Location {
-	if t.TZ == "" {
-		return time.UTC
-	}
-	loc, err := time.LoadLocation(t.TZ)
-	if err != nil {
-		return time.UTC
-	}
-	return loc
-}
-
 // noArgs refuses words after a command that takes none, suggesting the
 // nearest of the related commands.
 func noArgs(c *call, related ...string) error {
@@ -87,7 +75,7 @@ func runDigestShow(c *call) (Reply, error) {
 			return err
 		}
 		t = withDigestDefaults(t)
-		loc := teamLoc(t)
+		loc := t.Location()
 		prev := weekly.LastScheduled(c.now, t.DigestDay, t.DigestMinute, loc)
 		lastWeek = weekly.DigestWeek(prev, loc)
 		for i := 0; i < 8 && !lastPosted; i++ {
@@ -103,7 +91,7 @@ func runDigestShow(c *call) (Reply, error) {
 	if err != nil {
 		return Reply{}, err
 	}
-	loc := teamLoc(t)
+	loc := t.Location()
 	r := Reply{Title: "Weekly digest", Ephemeral: true}
 	add := func(l, v string) { r.Fields = append(r.Fields, Field{l, v}) }
 	if t.DigestOff {
@@ -136,7 +124,7 @@ func runDigestNow(c *call) (Reply, error) {
 		if err != nil {
 			return err
 		}
-		loc := teamLoc(t)
+		loc := t.Location()
 		week := digest.WeekOf(c.now, loc)
 		d, err := buildDigest(tx, week, loc)
 		if err != nil {
@@ -181,7 +169,7 @@ func runDigestWeek(c *call) (Reply, error) {
 		if err != nil {
 			return err
 		}
-		loc := teamLoc(t)
+		loc := t.Location()
 		if week.Start(loc).After(c.now) {
 			return usageErr("digest now", "week %s has not started yet", week)
 		}
@@ -241,7 +229,7 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 		title += ": " + t.Name
 	}
 	r := Reply{Title: title}
-	loc := teamLoc(t)
+	loc := t.Location()
 	r.Lines = append(r.Lines, fmt.Sprintf("Week of %s to %s.", d.From.In(loc).Format("Mon 2 Jan"), d.To.In(loc).Add(-time.Hour).Format("Sun 2 Jan")))
 	tt := d.Team
 	if tt.Jumped == 0 {
@@ -422,7 +410,7 @@ func runDigestSchedule(c *call) (Reply, error) {
 	if err != nil {
 		return Reply{}, err
 	}
-	loc := teamLoc(t)
+	loc := t.Location()
 	next := weekly.NextScheduled(c.now, day, hh*60+mm, loc)
 	return Reply{Title: "Digest schedule set", Lines: []string{fmt.Sprintf("Every %s at %02d:%02d %s; next %s.", day, hh, mm, loc, next.In(loc).Format("Mon 2 Jan 15:04"))}}, nil
 }
@@ -557,7 +545,7 @@ func (e *Engine) PostDigest(ctx context.Context, week digest.Week, scheduledAt t
 	}
 	var r Reply
 	err = e.store.View(ctx, func(tx Tx) error {
-		d, err := buildDigest(tx, week, teamLoc(team))
+		d, err := buildDigest(tx, week, team.Location())
 		if err != nil {
 			return err
 		}
@@ -566,7 +554,7 @@ func (e *Engine) PostDigest(ctx context.Context, week digest.Week, scheduledAt t
 	})
 	if err == nil {
 		if late {
-			loc := teamLoc(team)
+			loc := team.Location()
 			r.Lines = append([]string{fmt.Sprintf("This digest is late: it was due %s, when the bot was not running.", scheduledAt.In(loc).Format("Mon 2 Jan 15:04"))}, r.Lines...)
 		}
 		err = post(ctx, team.DigestChannel, r)

@@ -58,18 +58,6 @@ func logCommands() []command {
 	}
 }
 
-// logLocation is the team's time zone; "" means UTC.
-func logLocation(t record.Team) (*time.Location, error) {
-	if t.TZ == "" {
-		return time.UTC, nil
-	}
-	loc, err := time.LoadLocation(t.TZ)
-	if err != nil {
-		return nil, fmt.Errorf("team time zone %q: %w", t.TZ, err)
-	}
-	return loc, nil
-}
-
 // farFuture bounds open-ended scans (the store's keys end in 2262).
 func farFuture() time.Time { return time.Date(2262, 1, 1, 0, 0, 0, 0, time.UTC) }
 

@@ -273,13 +273,6 @@ func parseCount(w, suffix string) (int, bool) {
 	return n, true
 }
 
-// allTimeFrom and allTimeTo bound an athlete's whole history in a range
-// scan (the store keys attempts by Unix nanoseconds, valid to 2262).
-var (
-	allTimeFrom = time.Unix(0, 0).UTC()
-	allTimeTo   = time.Date(2200, 1, 1, 0, 0, 0, 0, time.UTC)
-)
-
 // forgetExport is the file handed over before an athlete's data is deleted.
 type forgetExport struct {
 	Exported time.Time        `json:"exported"`
@@ -306,7 +299,7 @@ func runForget(c *call) (Reply, error) {
 			return err
 		}
 		exp = forgetExport{Exported: c.now.UTC(), Athlete: a}
-		if err := tx.Attempts(a.ID, allTimeFrom, allTimeTo, func(at record.Attempt) error {
+		if err := tx.Attempts(a.ID, time.Unix(0, 0), farFuture(), func(at record.Attempt) error {
 			exp.Attempts = append(exp.Attempts, at)
 			return nil
 		}); err != nil {

@@ -36,8 +36,7 @@ func teamAndZone(tx Tx) (record.Team, *time.Location, error) {
 	if err != nil {
 		return t, nil, err
 	}
-	loc, err := logLocation(t)
-	return t, loc, err
+	return t, t.Location(), nil
 }
 
 // updateTeam loads the settings, lets change edit them, stores them and

@@ -2,6 +2,9 @@ package main
 
 import (
 	"context"
+	"io"
+	"path/filepath"
+	"strings"
 	"testing"
 	"time"
 
@@ -26,3 +29,25 @@ type nopDedup struct{}
 
 func (nopDedup) Seen(context.Context, string) (bool, error) { return false, nil }
 func (nopDedup) MarkSeen(context.Context, string) error     { return nil }
+
+// newDigestApp is the bot on a temporary data file with a digest channel
+// and one athlete, closed at cleanup.
+func newDigestApp(t *testing.T) *app {
+	t.Helper()
+	env := func(k string) string { return map[string]string{"TMPDIR": t.TempDir()}[k] }
+	cfg, err := parseConfig([]string{"--data", filepath.Join(t.TempDir(), "d.db")}, env, io.Discard)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, err := newApp(context.Background(), cfg, stdio{strings.NewReader(""), io.Discard, io.Discard})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { a.Close() })
+	for _, line := range []string{"digest channel C0JUMPS01", "athlete add Kai height 1.86"} {
+		if r := a.engine.Handle(context.Background(), botReq(line)); !r.OK() {
+			t.Fatalf("%s: %+v", line, r)
+		}
+	}
+	return a
+}

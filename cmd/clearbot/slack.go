@@ -32,7 +32,7 @@ func (a *app) runSlack(ctx context.Context) error {
 		return err
 	}
 	sched, err := weekly.New(weekly.Config{
-		Day: team.DigestDay, Minute: team.DigestMinute, Loc: teamLoc(team), Off: team.DigestOff,
+		Day: team.DigestDay, Minute: team.DigestMinute, Loc: team.Location(), Off: team.DigestOff,
 		Job:    digestJob{engine: a.engine, poster: front, log: a.log, waits: []time.Duration{time.Minute, 5 * time.Minute, 15 * time.Minute}},
 		Ledger: ledger{a.engine}, Logger: a.log,
 	})
@@ -59,7 +59,7 @@ func (a *app) runSlack(ctx context.Context) error {
 			a.log.Error("digest scheduler", "err", err)
 		}
 	}()
-	a.log.Info("clearbot serving Slack", "mode", front.Mode().String(), "data", a.db.Path(), "digest", fmt.Sprintf("%s %02d:%02d %s", team.DigestDay, team.DigestMinute/60, team.DigestMinute%60, teamLoc(team)))
+	a.log.Info("clearbot serving Slack", "mode", front.Mode().String(), "data", a.db.Path(), "digest", fmt.Sprintf("%s %02d:%02d %s", team.DigestDay, team.DigestMinute/60, team.DigestMinute%60, team.Location()))
 	err = front.Run(ctx)
 	cancel()
 	wg.Wait()
@@ -74,18 +74,10 @@ func (a *app) runSlack(ctx context.Context) error {
 func followTeam(sched *weekly.Scheduler, log *slog.Logger) func(record.Team) {
 	return func(t record.Team) {
 		sched.SetOff(t.DigestOff)
-		if err := sched.Reschedule(t.DigestDay, t.DigestMinute, teamLoc(t)); err != nil && !errors.Is(err, weekly.ErrStopped) {
+		if err := sched.Reschedule(t.DigestDay, t.DigestMinute, t.Location()); err != nil && !errors.Is(err, weekly.ErrStopped) {
 			log.Error("digest: reschedule", "err", err)
 		}
 	}
-}
-
-// teamLoc is the team's zone, UTC when unset or unknown.
-func teamLoc(t record.Team) *time.Location {
-	if loc, err := time.LoadLocation(t.TZ); err == nil && t.TZ != "" {
-		return loc
-	}
-	return time.UTC
 }
 
 // digestJob posts a week's digest through the front end, at most once, and

@@ -179,21 +179,7 @@ func TestDigestRateLimitedPostsOnce(t *testing.T) {
 		}
 	}))
 	defer srv.Close()
-	env := func(k string) string { return map[string]string{"TMPDIR": t.TempDir()}[k] }
-	cfg, err := parseConfig([]string{"--data", filepath.Join(t.TempDir(), "d.db")}, env, io.Discard)
-	if err != nil {
-		t.Fatal(err)
-	}
-	a, err := newApp(context.Background(), cfg, stdio{strings.NewReader(""), io.Discard, io.Discard})
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer a.Close()
-	for _, line := range []string{"digest channel C0JUMPS01", "athlete add Kai height 1.86"} {
-		if r := a.engine.Handle(context.Background(), botReq(line)); !r.OK() {
-			t.Fatalf("%s: %+v", line, r)
-		}
-	}
+	a := newDigestApp(t)
 	front, err := slackfront.New(slackfront.Config{BotToken: "xoxb-test", AppToken: "xapp-test", APIURL: srv.URL + "/", Handler: a.engine, Dedup: nopDedup{}})
 	if err != nil {
 		t.Fatal(err)
@@ -232,21 +218,7 @@ func (p *partPoster) PostReply(context.Context, string, string, bot.Reply) error
 // A digest that went out in part is not posted again: the job neither
 // retries it nor lets the engine release the week for a later run.
 func TestDigestPartlyPostedIsNotRepeated(t *testing.T) {
-	env := func(k string) string { return map[string]string{"TMPDIR": t.TempDir()}[k] }
-	cfg, err := parseConfig([]string{"--data", filepath.Join(t.TempDir(), "d.db")}, env, io.Discard)
-	if err != nil {
-		t.Fatal(err)
-	}
-	a, err := newApp(context.Background(), cfg, stdio{strings.NewReader(""), io.Discard, io.Discard})
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer a.Close()
-	for _, line := range []string{"digest channel C0JUMPS01", "athlete add Kai height 1.86"} {
-		if r := a.engine.Handle(context.Background(), botReq(line)); !r.OK() {
-			t.Fatalf("%s: %+v", line, r)
-		}
-	}
+	a := newDigestApp(t)
 	poster := &partPoster{}
 	job := digestJob{engine: a.engine, poster: poster, log: a.log, waits: []time.Duration{time.Millisecond, time.Millisecond}}
 	week := digestWeek(t, "2026-W48")

@@ -156,6 +156,20 @@ type Team struct {
 	BackupKeep int    `json:"backup_keep,omitempty"`
 }
 
+// Location is the team's time zone: UTC when none is set. Zone names are
+// checked when a coach sets them and the zone database is embedded in the
+// binary, so a stored name always loads; one that does not is read as UTC.
+func (t Team) Location() *time.Location {
+	if t.TZ == "" {
+		return time.UTC
+	}
+	loc, err := time.LoadLocation(t.TZ)
+	if err != nil {
+		return time.UTC
+	}
+	return loc
+}
+
 // DefaultBackupKeep is how many nightly backups are kept when a coach did
 // not say.
 const DefaultBackupKeep = 7
