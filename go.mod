@@ -1,4 +1,4 @@
-module github.com/clearbot-team/clearbot
+module github.com/lathmark-team/lathmark
 
 go 1.26
 

@@ -8,8 +8,8 @@ import (
 	"strings"
 	"unicode"
 
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/internal/units"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 // Plausibility limits for profile values. Outside them the value is almost

@@ -10,7 +10,7 @@ import (
 
 	bolt "go.etcd.io/bbolt"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // BenchmarkProfileCommand changes a profile end to end (Engine.Handle:

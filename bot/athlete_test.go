@@ -7,9 +7,9 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // athleteByName reads a profile straight from the store.

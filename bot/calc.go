@@ -8,9 +8,9 @@ import (
 	"strings"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/mechanics"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/internal/units"
+	"github.com/lathmark-team/lathmark/internal/mechanics"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 // Examples shown with the quick calculations; each works as typed.

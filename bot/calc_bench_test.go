@@ -6,9 +6,9 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/console"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/console"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // BenchmarkCalcMarginFor times `margin ... for Mira` end to end (Engine.Handle:

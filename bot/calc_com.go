@@ -5,8 +5,8 @@ import (
 	"math"
 	"strings"
 
-	"github.com/clearbot-team/clearbot/internal/mechanics"
-	"github.com/clearbot-team/clearbot/internal/units"
+	"github.com/lathmark-team/lathmark/internal/mechanics"
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 // comSpecs are the keywords of `com`.

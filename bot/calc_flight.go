@@ -3,8 +3,8 @@ package bot
 import (
 	"fmt"
 
-	"github.com/clearbot-team/clearbot/internal/mechanics"
-	"github.com/clearbot-team/clearbot/internal/units"
+	"github.com/lathmark-team/lathmark/internal/mechanics"
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 // flightSpecs are the keywords of `flight`.

@@ -6,9 +6,9 @@ import (
 	"math"
 	"strings"
 
-	"github.com/clearbot-team/clearbot/internal/mechanics"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/internal/units"
+	"github.com/lathmark-team/lathmark/internal/mechanics"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 // marginSpecs are the keywords of `margin`, in any order.

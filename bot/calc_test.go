@@ -9,10 +9,10 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/mechanics"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/mechanics"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // calcG is standard gravity, 9.80665 m/s², exact by definition (3rd CGPM,

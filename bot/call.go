@@ -9,7 +9,7 @@ import (
 	"strings"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 // errDuplicate means the message was already handled: a re-delivery.

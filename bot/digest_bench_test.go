@@ -10,10 +10,10 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/botstore"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/botstore"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // digestSquadSize is the squad of the digest benchmark: a large club.

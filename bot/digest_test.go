@@ -8,8 +8,8 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/digest"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/digest"
 )
 
 // digestSquad logs two weeks of practice for two athletes, one private.

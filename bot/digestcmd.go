@@ -8,10 +8,10 @@ import (
 	"strings"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/digest"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/internal/units"
-	"github.com/clearbot-team/clearbot/internal/weekly"
+	"github.com/lathmark-team/lathmark/internal/digest"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/units"
+	"github.com/lathmark-team/lathmark/internal/weekly"
 )
 
 // The digest's default slot: Monday 07:00 team time.
@@ -291,7 +291,7 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 	png, err := digest.Chart(shown, digest.ChartOptions{Imperial: imp, Team: t.Name})
 	switch {
 	case err == nil:
-		r.Files = append(r.Files, File{Name: "clearbot-digest-" + d.Week.String() + ".png", MIME: "image/png", Title: title, Data: png})
+		r.Files = append(r.Files, File{Name: "lathmark-digest-" + d.Week.String() + ".png", MIME: "image/png", Title: title, Data: png})
 	case errors.Is(err, digest.ErrNoChartData):
 	default:
 		return r, fmt.Errorf("digest chart: %w", err)

@@ -1,4 +1,4 @@
-// Package bot is clearbot's command engine, independent of any chat
+// Package bot is lathmark's command engine, independent of any chat
 // transport. A front end (the terminal, Slack) turns what a person typed
 // into a Request; Engine.Handle parses it, checks the speaker's role, runs the
 // command inside one store transaction and returns a Reply, which the front

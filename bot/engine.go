@@ -9,7 +9,7 @@ import (
 	"strings"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 // Config is what an Engine needs from its surroundings.
@@ -71,7 +71,7 @@ func (e *Engine) Handle(ctx context.Context, req Request) (reply Reply) {
 	}()
 	ts := tokenize(req.Text)
 	if len(ts) == 0 {
-		return Reply{Title: "clearbot", Lines: []string{"Type `help` to see what I can do."}, Example: "help", Ephemeral: true}
+		return Reply{Title: "lathmark", Lines: []string{"Type `help` to see what I can do."}, Example: "help", Ephemeral: true}
 	}
 	cmd, args, err := e.lookup(ts)
 	if err != nil {

@@ -10,13 +10,13 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/botstore"
-	"github.com/clearbot-team/clearbot/internal/console"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/botstore"
+	"github.com/lathmark-team/lathmark/internal/console"
+	"github.com/lathmark-team/lathmark/store"
 )
 
-// testStoreOptions tune bbolt's group commit as cmd/clearbot does.
+// testStoreOptions tune bbolt's group commit as cmd/lathmark does.
 var testStoreOptions = store.Options{MaxBatchSize: 100, MaxBatchDelay: 2 * time.Millisecond}
 
 var update = flag.Bool("update", false, "rewrite golden replies under testdata/replies")
@@ -42,7 +42,7 @@ type testEngine struct {
 // invariants and closes it. The operator "U_HEAD" is a head coach.
 func newTestEngine(t testing.TB) *testEngine {
 	t.Helper()
-	return newTestEngineAt(t, filepath.Join(t.TempDir(), "clearbot.db"))
+	return newTestEngineAt(t, filepath.Join(t.TempDir(), "lathmark.db"))
 }
 
 // newTestEngineAt is newTestEngine on a given file, which may already hold

@@ -7,7 +7,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // FuzzHandle sends arbitrary lines through the whole engine. Whatever the

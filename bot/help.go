@@ -39,7 +39,7 @@ var safetyLines = []string{
 
 func runHelp(c *call) (Reply, error) {
 	if len(c.args) == 0 {
-		r := Reply{Title: "clearbot: what I can do", Ephemeral: true}
+		r := Reply{Title: "lathmark: what I can do", Ephemeral: true}
 		for _, t := range topicOrder {
 			r.Lines = append(r.Lines, "*"+t.name+"*: "+t.about+" (help "+t.name+")")
 		}

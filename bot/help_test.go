@@ -5,7 +5,7 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // TestHelpExamplesRun types every command's help example, as the head coach

@@ -12,7 +12,7 @@ import (
 
 	bolt "go.etcd.io/bbolt"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // concurrentWriters is the load of a busy pit: a hundred phones logging at once.

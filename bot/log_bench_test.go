@@ -10,17 +10,17 @@ import (
 
 	bolt "go.etcd.io/bbolt"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/botstore"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/botstore"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // benchStore opens a store in a temporary folder with an engine whose
 // clock is set by the caller.
 func benchStore(b *testing.B, now *time.Time) (*store.DB, *bot.Engine) {
 	b.Helper()
-	db, err := store.Open(filepath.Join(b.TempDir(), "clearbot.db"), testStoreOptions)
+	db, err := store.Open(filepath.Join(b.TempDir(), "lathmark.db"), testStoreOptions)
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -9,12 +9,12 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/botstore"
-	"github.com/clearbot-team/clearbot/internal/console"
-	"github.com/clearbot-team/clearbot/internal/mechanics"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/botstore"
+	"github.com/lathmark-team/lathmark/internal/console"
+	"github.com/lathmark-team/lathmark/internal/mechanics"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // Demo athletes of the invented Harbour Lane Athletics Club.
@@ -153,7 +153,7 @@ func TestUndoRemovesOnlyTheLastLineOfTheSpeaker(t *testing.T) {
 // was logged.
 func TestLogTerminalRestart(t *testing.T) {
 	dir := t.TempDir()
-	path := filepath.Join(dir, "clearbot.db")
+	path := filepath.Join(dir, "lathmark.db")
 	at := testClockStart
 	step := func() time.Time { at = at.Add(time.Second); return at }
 	session := func(input string) string {

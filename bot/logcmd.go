@@ -9,8 +9,8 @@ import (
 	"strings"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/internal/units"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 // undoWindow is how far back undo reaches.

@@ -16,7 +16,7 @@ import (
 	"time"
 	"unicode/utf8"
 
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 // The CSV form of attempts, one row each, RFC 4180 as encoding/csv writes
@@ -201,9 +201,9 @@ func runExportCSV(c *call) (Reply, error) {
 			return err
 		}
 		day := c.now.In(loc).Format("2006-01-02")
-		name := "clearbot-attempts-" + day + ".csv"
+		name := "lathmark-attempts-" + day + ".csv"
 		if len(args) > 0 {
-			name = "clearbot-attempts-" + fileSafe(athletes[0].Name) + "-" + day + ".csv"
+			name = "lathmark-attempts-" + fileSafe(athletes[0].Name) + "-" + day + ".csv"
 		}
 		from := "all logged"
 		if sinceWord != "" {
@@ -212,7 +212,7 @@ func runExportCSV(c *call) (Reply, error) {
 		r = Reply{
 			Title:     "CSV export",
 			Lines:     []string{fmt.Sprintf("%s of %s, %s; one row per attempt, times in ISO 8601 with the team's offset, lengths in metres.", plural(len(as), "attempt"), plural(with, "athlete"), from)},
-			Files:     []File{{Name: name, MIME: "text/csv", Title: "clearbot attempts " + day, Data: buf.Bytes()}},
+			Files:     []File{{Name: name, MIME: "text/csv", Title: "lathmark attempts " + day, Data: buf.Bytes()}},
 			Caution:   "The file holds personal data about athletes, some of whom may be minors: share it only with the people who need it.",
 			Ephemeral: true,
 		}
@@ -446,7 +446,7 @@ func runImportCSV(c *call) (Reply, error) {
 		return Reply{}, usageErr("import csv /home/coach/attempts.csv", "give the path of a CSV file on the bot's computer")
 	}
 	if !c.req.Local {
-		return Reply{}, forbiddenErr("export csv", "import csv reads a file on the bot's own computer, so it works only in the bot's terminal (clearbot run there); from chat, send the file to the person who runs the bot")
+		return Reply{}, forbiddenErr("export csv", "import csv reads a file on the bot's own computer, so it works only in the bot's terminal (lathmark run there); from chat, send the file to the person who runs the bot")
 	}
 	path := strings.Trim(joinRaw(c.args), `"'`)
 	return c.importCSVFile(path, nil)

@@ -10,8 +10,8 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 // csvGolden compares data with testdata/csv/NAME, rewriting it under -update.
@@ -58,7 +58,7 @@ func TestExportCSV(t *testing.T) {
 	logSquadLines(te)
 	r := te.must("export csv")
 	golden(t, "log-export", plain(r))
-	if len(r.Files) != 1 || r.Files[0].Name != "clearbot-attempts-2026-11-25.csv" || r.Files[0].MIME != "text/csv" {
+	if len(r.Files) != 1 || r.Files[0].Name != "lathmark-attempts-2026-11-25.csv" || r.Files[0].MIME != "text/csv" {
 		t.Fatalf("files %+v", r.Files)
 	}
 	csvGolden(t, "log-export.csv", r.Files[0].Data)
@@ -82,7 +82,7 @@ func TestExportCSV(t *testing.T) {
 	}
 
 	one := te.must("export csv Mira since 2026-11-15")
-	if one.Files[0].Name != "clearbot-attempts-Mira-2026-11-25.csv" {
+	if one.Files[0].Name != "lathmark-attempts-Mira-2026-11-25.csv" {
 		t.Errorf("file name %q", one.Files[0].Name)
 	}
 	if n := strings.Count(string(one.Files[0].Data), "\n"); n != 1+3 {
@@ -118,7 +118,7 @@ func TestCSVRoundTrip(t *testing.T) {
 	logAddAthlete(t, te1.DB, logKai())
 	logSquadLines(te1)
 	data := te1.must("export csv").Files[0].Data
-	path := filepath.Join(t.TempDir(), "clearbot-attempts-2026-11-25.csv")
+	path := filepath.Join(t.TempDir(), "lathmark-attempts-2026-11-25.csv")
 	if err := os.WriteFile(path, data, 0o600); err != nil {
 		t.Fatal(err)
 	}

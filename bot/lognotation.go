@@ -6,8 +6,8 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/internal/units"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 // The log line, before any athlete is looked up: pure parsing, no store.

@@ -8,7 +8,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 // groupsText writes parsed groups back as "1.95 o, 2 xo" (bars in metres,

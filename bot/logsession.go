@@ -6,8 +6,8 @@ import (
 	"strings"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/internal/units"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 // Sessions, heights and competition sense over stored attempts: pure

@@ -12,9 +12,9 @@ import (
 	"time"
 	"unicode"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/botstore"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/botstore"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // The speakers of the malformed corpus: the configured head coach, and

@@ -6,7 +6,7 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/clearbot-team/clearbot/internal/units"
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 // valueKind says how an option's value is read.

@@ -7,7 +7,7 @@ import (
 	"strings"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 func roleCommands() []command {
@@ -77,7 +77,7 @@ func runRole(c *call) (Reply, error) {
 		return Reply{}, usageErr(ex, "I can't tell who %q is; use an @mention", who)
 	}
 	if slices.Contains(c.e.headCoaches, uid) && role != record.RoleHeadCoach {
-		return Reply{}, conflictErr(ex, "%s is a head coach by the bot's configuration (CLEARBOT_HEAD_COACH); change it there", uid)
+		return Reply{}, conflictErr(ex, "%s is a head coach by the bot's configuration (LATHMARK_HEAD_COACH); change it there", uid)
 	}
 	var u record.User
 	err := c.update(func(tx Tx) error {
@@ -325,7 +325,7 @@ func runForget(c *call) (Reply, error) {
 		Title:     "Forgot " + name,
 		Lines:     []string{fmt.Sprintf("%s deleted: the profile, %s and %s. The export below is the only copy the bot keeps; hand it to the athlete or their guardian and keep it safe.", plural(removed, "record"), plural(len(exp.Attempts), "jump"), plural(len(exp.Users), "chat link"))},
 		Ephemeral: true,
-		Files:     []File{{Name: "clearbot-forget-" + strings.ToLower(name) + ".json", MIME: "application/json", Title: "Data of " + name, Data: data}},
+		Files:     []File{{Name: "lathmark-forget-" + strings.ToLower(name) + ".json", MIME: "application/json", Title: "Data of " + name, Data: data}},
 		Caution:   "Backups made before today still hold this athlete's data; delete or let them expire as your data policy says.",
 	}, nil
 }

@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // The roles of the matrix: the configured head coach, a granted coach, an
@@ -106,7 +106,7 @@ func TestRoleMatrix(t *testing.T) {
 		{"team tz Europe/Madrid", headOnly},
 		{"team location lat 40.4 alt 650", headOnly},
 		{"team name Test Club", headOnly},
-		{"team backup /tmp/clearbot-backups keep 3", headOnly},
+		{"team backup /tmp/lathmark-backups keep 3", headOnly},
 		{"role coach <@U_NEW>", headOnly},
 		{"roles", staff},
 		{"audit 30d", staff},

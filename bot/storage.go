@@ -4,13 +4,13 @@ import (
 	"context"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 // Store runs one command's reads and writes as a single transaction. Update
 // commits when fn returns nil and rolls everything back otherwise, so a
 // command never half-writes. The store package's DB satisfies it through a
-// small adapter in cmd/clearbot.
+// small adapter in cmd/lathmark.
 type Store interface {
 	View(ctx context.Context, fn func(Tx) error) error
 	Update(ctx context.Context, fn func(Tx) error) error

@@ -7,8 +7,8 @@ import (
 	"strings"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/internal/units"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 func teamCommands() []command {
@@ -25,7 +25,7 @@ func teamCommands() []command {
 		{name: "team name", topic: "team", access: headOnly,
 			usage: "team name TEXT", example: "team name Harbour Lane AC", summary: "the name shown on the digest", run: runTeamName},
 		{name: "team backup", topic: "team", access: headOnly,
-			usage: "team backup DIR [keep N] | team backup off", example: "team backup /srv/clearbot/backups keep 14",
+			usage: "team backup DIR [keep N] | team backup off", example: "team backup /srv/lathmark/backups keep 14",
 			summary: "a nightly backup (02:30 team time) into DIR, keeping the last N", run: runTeamBackup},
 	}
 }
@@ -286,7 +286,7 @@ func runTeamName(c *call) (Reply, error) {
 }
 
 func runTeamBackup(c *call) (Reply, error) {
-	const ex = "team backup /srv/clearbot/backups keep 14"
+	const ex = "team backup /srv/lathmark/backups keep 14"
 	if len(c.args) == 1 && c.args[0].Lower == "off" {
 		t, err := c.updateTeam("team backup", func(t *record.Team) error { t.BackupDir, t.BackupKeep = "", 0; return nil })
 		if err != nil {

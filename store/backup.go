@@ -76,7 +76,7 @@ func (db *DB) backupToFile(path string) (int64, error) {
 // keeps the previous live file as livePath+BeforeRestoreSuffix (replacing an
 // older one) and renames the checked copy onto livePath.
 //
-// Stop clearbot before restoring: Restore notices a running process but
+// Stop lathmark before restoring: Restore notices a running process but
 // cannot stop one from starting while it works.
 func Restore(backupPath, livePath string) (err error) {
 	defer catchFault(&err, "store: restore "+backupPath+" to "+livePath, debug.SetPanicOnFault(true))
@@ -94,7 +94,7 @@ func restore(backupPath, livePath string) error {
 		return err
 	}
 	// Hold a shared lock on the live file while we work: it fails if a
-	// clearbot holds it, and makes one starting now wait.
+	// lathmark holds it, and makes one starting now wait.
 	live, err := bolt.Open(livePath, fileMode, &bolt.Options{ReadOnly: true, Timeout: restoreProbeTimeout})
 	switch {
 	case errors.Is(err, bolterrors.ErrTimeout):

@@ -17,8 +17,8 @@ import (
 
 	bolt "go.etcd.io/bbolt"
 
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 func TestBackupRoundTrip(t *testing.T) {

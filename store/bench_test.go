@@ -15,8 +15,8 @@ import (
 
 	bolt "go.etcd.io/bbolt"
 
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 func openBench(b *testing.B, opts store.Options) (*store.DB, uint64) {

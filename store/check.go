@@ -11,7 +11,7 @@ import (
 
 	bolt "go.etcd.io/bbolt"
 
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 // ErrInconsistent is matched by the error Check returns for a file that
@@ -22,7 +22,7 @@ var ErrInconsistent = errors.New("data file is inconsistent")
 const maxProblems = 20
 
 // Check opens the data file at path read-only (it must not be held by a
-// running clearbot) and checks it as (*DB).Check does.
+// running lathmark) and checks it as (*DB).Check does.
 func Check(path string) (err error) {
 	defer catchFault(&err, "store: check "+path, debug.SetPanicOnFault(true))
 	db, err := Open(path, Options{ReadOnly: true})

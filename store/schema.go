@@ -82,7 +82,7 @@ func migrateCreateV1(tx *bolt.Tx) error {
 		return err
 	}
 	if len(foreign) > 0 {
-		return fmt.Errorf("file has no schema version but holds buckets clearbot does not use (%s): not a clearbot data file", strings.Join(foreign, ", "))
+		return fmt.Errorf("file has no schema version but holds buckets lathmark does not use (%s): not a lathmark data file", strings.Join(foreign, ", "))
 	}
 	for _, name := range known {
 		if _, err := tx.CreateBucketIfNotExists([]byte(name)); err != nil {
@@ -122,7 +122,7 @@ func (db *DB) prepareSchema(ms map[uint64]migration, target uint64) error {
 	}
 	switch {
 	case have > target:
-		return fmt.Errorf("store: open %s: schema version %d, this clearbot knows up to %d; upgrade clearbot: %w", db.path, have, target, ErrSchemaNewer)
+		return fmt.Errorf("store: open %s: schema version %d, this lathmark knows up to %d; upgrade lathmark: %w", db.path, have, target, ErrSchemaNewer)
 	case have == target:
 		return nil
 	case db.readOnly:

@@ -1,4 +1,4 @@
-// Package store keeps clearbot's records in one bbolt data file: team
+// Package store keeps lathmark's records in one bbolt data file: team
 // settings, athlete profiles with a case-insensitive name index, jump
 // attempts keyed so that one athlete's time window is a single range scan,
 // logged lines for undo, chat users, seen message ids, the append-only audit
@@ -70,15 +70,15 @@ type Options struct {
 // ErrLocked is matched (errors.Is) by the error Open returns when another
 // process holds the data file; the same error also matches bbolt's
 // errors.ErrTimeout.
-var ErrLocked = errors.New("data file is in use by another clearbot process")
+var ErrLocked = errors.New("data file is in use by another lathmark process")
 
 // ErrSchemaNewer is matched by the error Open returns for a data file written
-// by a newer clearbot: this code does not know its layout and refuses it.
-var ErrSchemaNewer = errors.New("data file schema is newer than this clearbot")
+// by a newer lathmark: this code does not know its layout and refuses it.
+var ErrSchemaNewer = errors.New("data file schema is newer than this lathmark")
 
 // ErrSchemaOlder is matched by the error a read-only Open returns for a file
 // that needs a migration, which only a read-write Open can run.
-var ErrSchemaOlder = errors.New("data file schema is older than this clearbot")
+var ErrSchemaOlder = errors.New("data file schema is older than this lathmark")
 
 // LockedError reports a data file locked by another process. It matches
 // both ErrLocked and bbolt's errors.ErrTimeout.
@@ -90,7 +90,7 @@ type LockedError struct {
 
 // Error names the file and how long Open waited.
 func (e *LockedError) Error() string {
-	return fmt.Sprintf("store: data file %s is in use by another clearbot process (lock not released within %s); stop that process or use another file", e.Path, e.Waited)
+	return fmt.Sprintf("store: data file %s is in use by another lathmark process (lock not released within %s); stop that process or use another file", e.Path, e.Waited)
 }
 
 // Unwrap returns ErrLocked and the bbolt timeout it came from.

@@ -20,9 +20,9 @@ import (
 	bolt "go.etcd.io/bbolt"
 	bolterrors "go.etcd.io/bbolt/errors"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // Tx must satisfy the bot's transaction interface.
@@ -35,7 +35,7 @@ var base = time.Date(2025, 3, 3, 17, 30, 0, 0, time.UTC)
 
 func tempPath(t *testing.T) string {
 	t.Helper()
-	return filepath.Join(t.TempDir(), "data", "clearbot.db")
+	return filepath.Join(t.TempDir(), "data", "lathmark.db")
 }
 
 // openTemp opens a fresh data file; at cleanup it runs Check (bbolt pages
@@ -220,7 +220,7 @@ func TestOpenLocked(t *testing.T) {
 		if !errors.As(err, &le) || le.Path != path || le.Waited != testTimeout {
 			t.Errorf("read-only %v: LockedError %+v", readOnly, le)
 		}
-		if !strings.Contains(err.Error(), path) || !strings.Contains(err.Error(), "in use by another clearbot process") {
+		if !strings.Contains(err.Error(), path) || !strings.Contains(err.Error(), "in use by another lathmark process") {
 			t.Errorf("message %q lacks the path or the cause", err)
 		}
 	}

@@ -8,8 +8,8 @@ import (
 	"context"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // Adapter presents a store.DB as a bot.Store.

@@ -9,7 +9,7 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 func TestRenderAllParts(t *testing.T) {

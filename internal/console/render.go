@@ -1,4 +1,4 @@
-// Package console is clearbot's terminal front end: it reads one command a
+// Package console is lathmark's terminal front end: it reads one command a
 // line, hands it to the engine as the terminal's user, and prints each Reply
 // as plain text. Attachments (charts, CSV exports) are written to a folder
 // and the reply says where.
@@ -10,7 +10,7 @@ import (
 	"strings"
 	"unicode/utf8"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // Render writes a reply as plain text. Files are listed by name only; the

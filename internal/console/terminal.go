@@ -11,7 +11,7 @@ import (
 	"strings"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // Handler is what the terminal needs of the engine.
@@ -54,7 +54,7 @@ func (t *Terminal) Run(ctx context.Context) error {
 	n := 0
 	for {
 		if t.Prompt {
-			fmt.Fprint(t.Out, "clearbot> ")
+			fmt.Fprint(t.Out, "lathmark> ")
 		}
 		select {
 		case <-ctx.Done():
@@ -146,7 +146,7 @@ func isBlank(s string) bool {
 func (t *Terminal) writeFile(f bot.File) (string, error) {
 	dir := t.FilesDir
 	if dir == "" {
-		dir = filepath.Join(os.TempDir(), "clearbot-files")
+		dir = filepath.Join(os.TempDir(), "lathmark-files")
 	}
 	if err := os.MkdirAll(dir, 0o700); err != nil {
 		return "", err

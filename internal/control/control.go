@@ -1,7 +1,7 @@
-// Package control is the local socket through which the clearbot command
+// Package control is the local socket through which the lathmark command
 // line asks a running bot for work that needs the open data file: a hot
 // backup. bbolt lets only one process open the file for writing, so while
-// the bot runs, `clearbot backup FILE` cannot open the file itself; it sends
+// the bot runs, `lathmark backup FILE` cannot open the file itself; it sends
 // one line over a Unix socket beside the data file (mode 0600) and the bot
 // makes the copy inside a read transaction, without stopping writers.
 //
@@ -114,7 +114,7 @@ func (s *Server) Close() error {
 }
 
 // ErrNoServer means no bot is listening for the data file.
-var ErrNoServer = errors.New("no running clearbot for this data file")
+var ErrNoServer = errors.New("no running lathmark for this data file")
 
 // Backup asks the bot running on dataPath to copy its data file to dest.
 // It returns ErrNoServer when no bot answers, so the caller can open the

@@ -24,7 +24,7 @@ func (f *fakeBackuper) BackupToFile(path string) (int64, error) {
 
 func TestBackupThroughSocket(t *testing.T) {
 	dir := t.TempDir()
-	data := filepath.Join(dir, "clearbot.db")
+	data := filepath.Join(dir, "lathmark.db")
 	fb := &fakeBackuper{}
 	s, err := Listen(data, fb, slog.New(slog.NewTextHandler(io.Discard, nil)))
 	if err != nil {

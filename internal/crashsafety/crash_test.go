@@ -20,17 +20,17 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/botstore"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/botstore"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // Environment variables of the crash test.
 const (
-	envChild  = "CLEARBOT_CRASH_CHILD"  // set: this process is the child bot; the value is its data file
-	envRounds = "CLEARBOT_CRASH_ROUNDS" // rounds of the long form
-	envSeed   = "CLEARBOT_CRASH_SEED"   // repeat an earlier run
+	envChild  = "LATHMARK_CRASH_CHILD"  // set: this process is the child bot; the value is its data file
+	envRounds = "LATHMARK_CRASH_ROUNDS" // rounds of the long form
+	envSeed   = "LATHMARK_CRASH_SEED"   // repeat an earlier run
 )
 
 // Shape of the short form: rounds and concurrent senders.
@@ -309,7 +309,7 @@ func TestCrashKill9(t *testing.T) {
 	t.Logf("seed %d (repeat with %s=%d)", seed, envSeed, seed)
 	rng := rand.New(rand.NewPCG(seed, 0x636c656172626f74))
 
-	path := filepath.Join(t.TempDir(), "clearbot.db")
+	path := filepath.Join(t.TempDir(), "lathmark.db")
 	seedSquad(t, path)
 
 	var (

@@ -1,8 +1,8 @@
-// Package crashsafety proves that clearbot loses nothing when its process
+// Package crashsafety proves that lathmark loses nothing when its process
 // dies at an arbitrary moment. It holds no code of its own, only a test.
 //
 // The test starts the bot as a child process (the test binary itself, run
-// again with CLEARBOT_CRASH_CHILD naming the data file). The child opens the
+// again with LATHMARK_CRASH_CHILD naming the data file). The child opens the
 // bbolt store, builds the command engine with one head coach and serves a
 // small HTTP endpoint on a loopback address; it answers a command only after
 // Engine.Handle has returned, so an answered log line has been committed
@@ -11,7 +11,7 @@
 // and a note carrying that id, kills the child with SIGKILL after a random
 // delay, and then reopens the file and checks:
 //
-//   - the file passes store's consistency check (bbolt pages and clearbot's
+//   - the file passes store's consistency check (bbolt pages and lathmark's
 //     own invariants);
 //   - every answered log line is stored, all of its attempts, exactly once;
 //   - a line that was in flight at the kill is stored whole or not at all,
@@ -26,8 +26,8 @@
 //
 // The short form (a few rounds) runs with the other tests. The long form:
 //
-//	CLEARBOT_CRASH_ROUNDS=200 go test -run Crash -v ./internal/crashsafety
+//	LATHMARK_CRASH_ROUNDS=200 go test -run Crash -v ./internal/crashsafety
 //
-// CLEARBOT_CRASH_SEED=N repeats the random delays and line shapes of an
+// LATHMARK_CRASH_SEED=N repeats the random delays and line shapes of an
 // earlier run (the seed is logged).
 package crashsafety

@@ -8,7 +8,7 @@ import (
 	"time"
 	"unsafe"
 
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 // Benchmarks on a synthetic squad of 300 athletes, three sessions a week and

@@ -9,7 +9,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 // at builds an attempt at a UTC wall time "2006-01-02 15:04".

@@ -9,7 +9,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 func chartDigest(t testing.TB, n int) Digest {

@@ -7,7 +7,7 @@ import (
 
 	_ "time/tzdata" // tests run without a system zone database too
 
-	"github.com/clearbot-team/clearbot/internal/record"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 // Synthetic squads for order, size and memory tests. The numbers are

@@ -1,4 +1,4 @@
-// Package record defines the values clearbot keeps: athlete profiles,
+// Package record defines the values lathmark keeps: athlete profiles,
 // jump attempts, team settings, chat users with their roles, audit entries
 // and digest bookkeeping. They are plain values in SI units (metres,
 // kilograms, metres per second); storage, parsing and display live elsewhere.

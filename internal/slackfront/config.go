@@ -12,7 +12,7 @@ import (
 
 	"github.com/slack-go/slack"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // Handler runs one command. The engine (*bot.Engine) satisfies it.

@@ -10,7 +10,7 @@ import (
 
 	"github.com/slack-go/slack"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // maxResponseURLPosts is how many messages one response_url takes (Slack
@@ -231,7 +231,7 @@ func (f *Front) upload(ctx context.Context, channel, threadTS string, file bot.F
 	}
 	name := file.Name
 	if name == "" {
-		name = "clearbot-file"
+		name = "lathmark-file"
 	}
 	title := file.Title
 	if title == "" {

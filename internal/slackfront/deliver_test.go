@@ -14,7 +14,7 @@ import (
 
 	"github.com/slack-go/slack"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // posterFront is a front end that is never Run: PostReply needs no

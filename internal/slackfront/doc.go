@@ -1,4 +1,4 @@
-// Package slackfront is clearbot's Slack front end. It receives commands
+// Package slackfront is lathmark's Slack front end. It receives commands
 // from Slack and hands each one to the engine as a bot.Request, then renders
 // the engine's bot.Reply as Block Kit and posts it back.
 //
@@ -15,10 +15,10 @@
 //     Every request's v0 signature and timestamp are checked before anything
 //     else runs; the HTTP request is answered at once and the work is queued.
 //
-// Commands arrive as a slash command (any name; the manifest suggests /jump),
+// Commands arrive as a slash command (any name; the manifest suggests /lath),
 // as a mention of the bot in a channel (the reply goes in a thread) or as a
-// direct message to the bot. Buttons (action_id "clearbot_cmd" or
-// "clearbot_cmd:N") run their value as a command typed by whoever pressed.
+// direct message to the bot. Buttons (action_id "lathmark_cmd" or
+// "lathmark_cmd:N") run their value as a command typed by whoever pressed.
 //
 // Replies: errors and help (Reply.Ephemeral) go only to the asker; other
 // replies asked in a channel answer in the channel. A slash command's reply

@@ -20,7 +20,7 @@ import (
 	"github.com/gorilla/websocket"
 	"github.com/slack-go/slack/slacktest"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // Test fixtures: ids and the signing secret are invented for these tests.
@@ -223,7 +223,7 @@ func (fs *fakeSlack) authTest(w http.ResponseWriter, r *http.Request) {
 		writeJSON(w, map[string]any{"ok": false, "error": authErr})
 		return
 	}
-	writeJSON(w, map[string]any{"ok": true, "user_id": botUser, "bot_id": botID, "team_id": "T0TEST", "team": "Harbour Lane Athletics Club", "user": "clearbot"})
+	writeJSON(w, map[string]any{"ok": true, "user_id": botUser, "bot_id": botID, "team_id": "T0TEST", "team": "Harbour Lane Athletics Club", "user": "lathmark"})
 }
 
 func (fs *fakeSlack) appsOpen(w http.ResponseWriter, r *http.Request) {

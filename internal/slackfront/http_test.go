@@ -13,7 +13,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 const formType = "application/x-www-form-urlencoded"
@@ -46,7 +46,7 @@ func slashForm(fs *fakeSlack, text, trigger, channel string) []byte {
 	return []byte(url.Values{
 		"token": {"unused"}, "team_id": {"T0TEST"}, "team_domain": {"harbourlane"},
 		"channel_id": {channel}, "channel_name": {"jumps"}, "user_id": {"U0KAI"}, "user_name": {"kai"},
-		"command": {"/jump"}, "text": {text}, "trigger_id": {trigger},
+		"command": {"/lath"}, "text": {text}, "trigger_id": {trigger},
 		"response_url": {fs.url() + "hooks/commands/T0TEST/1/" + trigger},
 	}.Encode())
 }
@@ -192,7 +192,7 @@ func TestHTTPMentionsAndDirectMessages(t *testing.T) {
 	if msgs[1].Form.Get("channel") != "D0KAI" || msgs[1].Form.Get("thread_ts") != "" {
 		t.Fatalf("DM answered in %v", msgs[1].Form)
 	}
-	post(mentionEvent("Ev-m2", "C0JUMPS", "U0KAI", "<@UBOT|clearbot> help", "1700000012.000100"))
+	post(mentionEvent("Ev-m2", "C0JUMPS", "U0KAI", "<@UBOT|lathmark> help", "1700000012.000100"))
 	eph := fs.waitCalls(t, "chat.postEphemeral", 1)
 	if eph[0].Form.Get("user") != "U0KAI" || eph[0].Form.Get("thread_ts") != "1700000012.000100" {
 		t.Fatalf("ephemeral help went to %v", eph[0].Form)
@@ -214,7 +214,7 @@ func TestHTTPMentionsAndDirectMessages(t *testing.T) {
 	}
 }
 
-// TestHTTPButtonRunsAsPresser: a press of a clearbot button runs its value
+// TestHTTPButtonRunsAsPresser: a press of a lathmark button runs its value
 // as the presser, answering in the same channel and thread; a second press
 // of the same button by the same person gets a notice and runs nothing.
 func TestHTTPButtonRunsAsPresser(t *testing.T) {

@@ -10,7 +10,7 @@ import (
 	"github.com/slack-go/slack"
 	"github.com/slack-go/slack/slackevents"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // inbound is one accepted delivery, waiting for a worker.
@@ -138,12 +138,12 @@ func (f *Front) fromSlash(c slack.SlashCommand, retry int) inbound {
 	}
 }
 
-// isOurAction reports whether an action id is one of clearbot's buttons.
+// isOurAction reports whether an action id is one of lathmark's buttons.
 func isOurAction(id string) bool {
 	return id == ActionID || strings.HasPrefix(id, ActionID+":")
 }
 
-// fromAction turns a press of one of clearbot's buttons into work: the
+// fromAction turns a press of one of lathmark's buttons into work: the
 // button's value runs as a command typed by the presser, answered in the
 // same channel and thread. Payloads that are not button presses, and
 // presses of other apps' buttons, give nothing.

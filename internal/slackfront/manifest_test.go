@@ -63,7 +63,7 @@ func TestManifestMatchesFrontEnd(t *testing.T) {
 			t.Errorf("manifest lacks bot event %s", e)
 		}
 	}
-	for _, want := range []string{"socket_mode_enabled: true", "is_enabled: true", "- command: /jump", "should_escape: true", "messages_tab_enabled: true"} {
+	for _, want := range []string{"socket_mode_enabled: true", "is_enabled: true", "- command: /lath", "should_escape: true", "messages_tab_enabled: true"} {
 		if !strings.Contains(string(raw), want) {
 			t.Errorf("manifest lacks %q", want)
 		}

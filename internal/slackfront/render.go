@@ -7,14 +7,14 @@ import (
 
 	"github.com/slack-go/slack"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
-// ActionID marks clearbot's buttons. Slack wants action ids unique inside
+// ActionID marks lathmark's buttons. Slack wants action ids unique inside
 // a message, so each button gets ActionID + ":" + its index; a press of any
 // id equal to ActionID or starting with ActionID + ":" runs the button's
 // value as a command.
-const ActionID = "clearbot_cmd"
+const ActionID = "lathmark_cmd"
 
 // Block Kit limits for messages, from Slack's Block Kit reference
 // (docs.slack.dev/reference/block-kit: blocks, block elements, composition
@@ -244,7 +244,7 @@ func fallbackText(r bot.Reply) string {
 		s = r.Fields[0].Label + ": " + r.Fields[0].Value
 	}
 	if s == "" {
-		s = "clearbot"
+		s = "lathmark"
 	}
 	if !r.OK() {
 		s = ":x: " + s

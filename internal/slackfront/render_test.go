@@ -8,7 +8,7 @@ import (
 
 	"github.com/slack-go/slack"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // TestRenderShapes checks which block each part of a reply becomes.
@@ -58,7 +58,7 @@ func TestRenderShapes(t *testing.T) {
 	buttons := blocks[7].(*slack.ActionBlock).Elements.ElementSet
 	b0 := buttons[0].(*slack.ButtonBlockElement)
 	b1 := buttons[1].(*slack.ButtonBlockElement)
-	if b0.ActionID != "clearbot_cmd:0" || b0.Value != "undo" || b0.Style != slack.StyleDanger || b1.ActionID != "clearbot_cmd:1" {
+	if b0.ActionID != "lathmark_cmd:0" || b0.Value != "undo" || b0.Style != slack.StyleDanger || b1.ActionID != "lathmark_cmd:1" {
 		t.Fatalf("buttons %+v %+v", b0, b1)
 	}
 	if _, err := json.Marshal(slack.Blocks{BlockSet: blocks}); err != nil {

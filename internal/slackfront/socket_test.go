@@ -27,7 +27,7 @@ func socketFront(t *testing.T, fs *fakeSlack, h Handler, d Dedup) *Front {
 func slashPayload(fs *fakeSlack, text, trigger string) []byte {
 	b, _ := json.Marshal(map[string]any{
 		"token": "unused", "team_id": "T0TEST", "team_domain": "harbourlane", "channel_id": "C0JUMPS",
-		"channel_name": "jumps", "user_id": "U0KAI", "user_name": "kai", "command": "/jump", "text": text,
+		"channel_name": "jumps", "user_id": "U0KAI", "user_name": "kai", "command": "/lath", "text": text,
 		"response_url": fs.url() + "hooks/commands/T0TEST/2/" + trigger, "trigger_id": trigger, "api_app_id": "A0TEST",
 	})
 	return b

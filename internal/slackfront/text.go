@@ -10,7 +10,7 @@ import (
 
 // cleanText turns a Slack message text into a command line: mentions of
 // the bot itself (<@UBOT> or <@UBOT|name>) are removed wherever they stand,
-// with the colon or comma people put after a leading one ("@clearbot: help"),
+// with the colon or comma people put after a leading one ("@lathmark: help"),
 // Slack's three entities (&amp; &lt; &gt;) are decoded, and the result is
 // trimmed. Other mentions stay: the engine resolves <@U123> to a person.
 func cleanText(text, botUserID string) string {

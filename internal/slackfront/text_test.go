@@ -11,13 +11,13 @@ import (
 func TestCleanText(t *testing.T) {
 	tests := []struct{ in, want string }{
 		{"<@UBOT> log Kai 1.95 o", "log Kai 1.95 o"},
-		{"<@UBOT|clearbot>   margin 2.00  for Kai", "margin 2.00 for Kai"},
+		{"<@UBOT|lathmark>   margin 2.00  for Kai", "margin 2.00 for Kai"},
 		{"log <@UBOT> me 1.80 o", "log me 1.80 o"},
 		{"athlete link Mira <@U0MIRA>", "athlete link Mira <@U0MIRA>"},
 		{"<@UBOTX> hi", "<@UBOTX> hi"}, // another user whose id starts like ours
 		{"log Kai 5&apos;10 &lt;x&gt; &amp;", "log Kai 5&apos;10 <x> &"},
 		{"<@UBOT>: help", "help"},
-		{" <@UBOT|clearbot> , history Kai 6w", "history Kai 6w"},
+		{" <@UBOT|lathmark> , history Kai 6w", "history Kai 6w"},
 		{"<@UBOT> <@UBOT>: help", "help"},
 		{"log Kai <@UBOT>: 1.95 o", "log Kai : 1.95 o"}, // only a leading mention takes its colon
 		{"<@UBOT>:help", "help"},

@@ -5,7 +5,7 @@ import (
 	"sync"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
+	"github.com/lathmark-team/lathmark/bot"
 )
 
 // maxCachedUsers bounds the display-name cache; a team has far fewer people.

@@ -1,5 +1,5 @@
 // Package units reads and writes the lengths, masses and speeds that coaches
-// type on a phone, and converts them to and from SI. Inside clearbot every
+// type on a phone, and converts them to and from SI. Inside lathmark every
 // length is metres and every mass kilograms; this package is the edge.
 //
 // Conversion factors are the international ones, exact by definition

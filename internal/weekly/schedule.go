@@ -18,7 +18,7 @@ import (
 	"fmt"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/digest"
+	"github.com/lathmark-team/lathmark/internal/digest"
 )
 
 // MinutesPerDay bounds a schedule's minute of the day: 0 ≤ minute < 1440.

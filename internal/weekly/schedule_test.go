@@ -9,7 +9,7 @@ import (
 
 	"github.com/robfig/cron/v3"
 
-	"github.com/clearbot-team/clearbot/internal/digest"
+	"github.com/lathmark-team/lathmark/internal/digest"
 )
 
 // Daylight-saving dates used below, from the IANA tz database as shipped

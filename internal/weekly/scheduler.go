@@ -12,7 +12,7 @@ import (
 
 	"github.com/robfig/cron/v3"
 
-	"github.com/clearbot-team/clearbot/internal/digest"
+	"github.com/lathmark-team/lathmark/internal/digest"
 )
 
 // Clock tells the time. The system clock is time.Now; tests pass a fake.

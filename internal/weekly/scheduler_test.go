@@ -11,7 +11,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/digest"
+	"github.com/lathmark-team/lathmark/internal/digest"
 )
 
 type fakeClock struct {

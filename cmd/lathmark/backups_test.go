@@ -9,8 +9,8 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 type fixedTeam record.Team
@@ -45,7 +45,7 @@ func TestNightlyBackupKeepsNewest(t *testing.T) {
 	for _, e := range entries {
 		got = append(got, e.Name())
 	}
-	want := []string{"clearbot-20261103-023000.db", "clearbot-20261104-023000.db", "clearbot-20261105-023000.db", "notes.txt"}
+	want := []string{"lathmark-20261103-023000.db", "lathmark-20261104-023000.db", "lathmark-20261105-023000.db", "notes.txt"}
 	if len(got) != len(want) {
 		t.Fatalf("backups %v, want %v", got, want)
 	}

@@ -8,12 +8,12 @@ import (
 	"sync"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/botstore"
-	"github.com/clearbot-team/clearbot/internal/digest"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/internal/slackfront"
-	"github.com/clearbot-team/clearbot/internal/weekly"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/botstore"
+	"github.com/lathmark-team/lathmark/internal/digest"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/slackfront"
+	"github.com/lathmark-team/lathmark/internal/weekly"
 )
 
 // runSlack serves the Slack workspace until ctx ends, with the weekly digest
@@ -59,7 +59,7 @@ func (a *app) runSlack(ctx context.Context) error {
 			a.log.Error("digest scheduler", "err", err)
 		}
 	}()
-	a.log.Info("clearbot serving Slack", "mode", front.Mode().String(), "data", a.db.Path(), "digest", fmt.Sprintf("%s %02d:%02d %s", team.DigestDay, team.DigestMinute/60, team.DigestMinute%60, team.Location()))
+	a.log.Info("lathmark serving Slack", "mode", front.Mode().String(), "data", a.db.Path(), "digest", fmt.Sprintf("%s %02d:%02d %s", team.DigestDay, team.DigestMinute/60, team.DigestMinute%60, team.Location()))
 	err = front.Run(ctx)
 	cancel()
 	wg.Wait()

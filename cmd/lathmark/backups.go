@@ -10,8 +10,8 @@ import (
 	"strings"
 	"time"
 
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // backupMinute is when the nightly backup runs: 02:30 team time.
@@ -20,7 +20,7 @@ const backupMinute = 2*60 + 30
 // backupPrefix and backupSuffix name nightly backup files, so pruning only
 // ever touches files the bot wrote itself.
 const (
-	backupPrefix = "clearbot-"
+	backupPrefix = "lathmark-"
 	backupSuffix = ".db"
 )
 

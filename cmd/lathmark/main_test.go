@@ -12,7 +12,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // runLines runs the terminal bot on data with the given input and returns
@@ -96,7 +96,7 @@ func TestDemoDigestWritesChart(t *testing.T) {
 }
 
 // A second process on a held data file gets a clear error, not a hang;
-// `clearbot backup` reaches the running bot through its control socket and
+// `lathmark backup` reaches the running bot through its control socket and
 // the copy passes the consistency check; restore refuses the live file.
 func TestBackupWhileRunningAndLock(t *testing.T) {
 	dir := t.TempDir()
@@ -111,7 +111,7 @@ func TestBackupWhileRunningAndLock(t *testing.T) {
 	waitFor(t, func() bool { return strings.Contains(out.String(), "Added Mira") })
 
 	_, errs, code := runLines(t, "athletes\n", "--data", data, "--lock-wait", "100ms")
-	if code != 1 || !strings.Contains(errs, "in use by another clearbot process") {
+	if code != 1 || !strings.Contains(errs, "in use by another lathmark process") {
 		t.Errorf("second bot on a held file: exit %d, %q", code, errs)
 	}
 	copyPath := filepath.Join(dir, "copy.db")

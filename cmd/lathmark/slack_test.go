@@ -16,11 +16,11 @@ import (
 	"testing"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/digest"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/internal/slackfront"
-	"github.com/clearbot-team/clearbot/internal/weekly"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/digest"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/slackfront"
+	"github.com/lathmark-team/lathmark/internal/weekly"
 )
 
 // fakeSlack serves the few Web API methods the bot calls and records every
@@ -38,7 +38,7 @@ func newFakeSlack(t *testing.T) *fakeSlack {
 		w.Header().Set("Content-Type", "application/json")
 		switch {
 		case strings.HasSuffix(r.URL.Path, "/auth.test"):
-			io.WriteString(w, `{"ok":true,"url":"https://fake.slack/","team":"Harbour","user":"clearbot","team_id":"T1","user_id":"UBOT","bot_id":"B1"}`)
+			io.WriteString(w, `{"ok":true,"url":"https://fake.slack/","team":"Harbour","user":"lathmark","team_id":"T1","user_id":"UBOT","bot_id":"B1"}`)
 		case strings.HasSuffix(r.URL.Path, "/users.info"):
 			io.WriteString(w, `{"ok":true,"user":{"id":"U_COACH","name":"coach","real_name":"Coach","profile":{"display_name":"Coach"}}}`)
 		case strings.HasSuffix(r.URL.Path, "/chat.postMessage"), strings.HasSuffix(r.URL.Path, "/chat.postEphemeral"), strings.HasPrefix(r.URL.Path, "/respond/"):
@@ -78,7 +78,7 @@ func TestSlackHTTPEndToEnd(t *testing.T) {
 	const secret = "test-signing-secret"
 	env := map[string]string{
 		"SLACK_BOT_TOKEN": "xoxb-test", "SLACK_SIGNING_SECRET": secret, "SLACK_API_URL": fake.srv.URL + "/api/",
-		"CLEARBOT_HEAD_COACH": "U_COACH", "TMPDIR": t.TempDir(),
+		"LATHMARK_HEAD_COACH": "U_COACH", "TMPDIR": t.TempDir(),
 	}
 	data := filepath.Join(t.TempDir(), "slack.db")
 	ctx, cancel := context.WithCancel(context.Background())
@@ -96,7 +96,7 @@ func TestSlackHTTPEndToEnd(t *testing.T) {
 	})
 	send := func(n int, text string) {
 		form := url.Values{
-			"command": {"/jump"}, "text": {text}, "user_id": {"U_COACH"}, "user_name": {"coach"},
+			"command": {"/lath"}, "text": {text}, "user_id": {"U_COACH"}, "user_name": {"coach"},
 			"channel_id": {"C1"}, "team_id": {"T1"}, "trigger_id": {fmt.Sprintf("trig-%d", n)},
 			"response_url": {fake.srv.URL + "/respond/" + strconv.Itoa(n)},
 		}

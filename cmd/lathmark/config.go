@@ -52,21 +52,21 @@ func parseConfig(args []string, getenv func(string) string, errOut io.Writer) (c
 				c.Sub = ""
 			}
 		default:
-			return c, fmt.Errorf("unknown subcommand %q; use run, backup, restore or check (clearbot -h)", args[0])
+			return c, fmt.Errorf("unknown subcommand %q; use run, backup, restore or check (lathmark -h)", args[0])
 		}
 	}
-	fs := flag.NewFlagSet("clearbot", flag.ContinueOnError)
+	fs := flag.NewFlagSet("lathmark", flag.ContinueOnError)
 	fs.SetOutput(errOut)
-	fs.StringVar(&c.DataPath, "data", envOr(getenv, "CLEARBOT_DATA", defaultDataPath(getenv)), "bbolt data file (env CLEARBOT_DATA)")
+	fs.StringVar(&c.DataPath, "data", envOr(getenv, "LATHMARK_DATA", defaultDataPath(getenv)), "bbolt data file (env LATHMARK_DATA)")
 	fs.BoolVar(&c.Demo, "demo", false, "run on a separate demo file, re-seeded with the invented Harbour Lane squad; never touches --data")
-	fs.StringVar(&c.As, "as", getenv("CLEARBOT_AS"), "terminal: act as this chat user id, with the roles the store gives it (default: the operator, a head coach)")
-	heads := fs.String("head-coach", getenv("CLEARBOT_HEAD_COACH"), "comma-separated chat user ids who are head coaches (env CLEARBOT_HEAD_COACH)")
-	fs.StringVar(&c.FilesDir, "files", envOr(getenv, "CLEARBOT_FILES", filepath.Join(tempDir(getenv), "clearbot-files")), "terminal: folder for charts and exports")
+	fs.StringVar(&c.As, "as", getenv("LATHMARK_AS"), "terminal: act as this chat user id, with the roles the store gives it (default: the operator, a head coach)")
+	heads := fs.String("head-coach", getenv("LATHMARK_HEAD_COACH"), "comma-separated chat user ids who are head coaches (env LATHMARK_HEAD_COACH)")
+	fs.StringVar(&c.FilesDir, "files", envOr(getenv, "LATHMARK_FILES", filepath.Join(tempDir(getenv), "lathmark-files")), "terminal: folder for charts and exports")
 	fs.DurationVar(&c.LockWait, "lock-wait", time.Second, "how long to wait for the data file's lock")
-	fs.StringVar(&c.LogLevel, "log", envOr(getenv, "CLEARBOT_LOG", "info"), "log level: debug, info, warn, error")
-	fs.StringVar(&c.HTTPAddr, "http", getenv("CLEARBOT_HTTP"), "Slack over HTTP: listen address, e.g. :8080 (needs SLACK_SIGNING_SECRET)")
+	fs.StringVar(&c.LogLevel, "log", envOr(getenv, "LATHMARK_LOG", "info"), "log level: debug, info, warn, error")
+	fs.StringVar(&c.HTTPAddr, "http", getenv("LATHMARK_HTTP"), "Slack over HTTP: listen address, e.g. :8080 (needs SLACK_SIGNING_SECRET)")
 	fs.Usage = func() {
-		fmt.Fprintln(errOut, "usage: clearbot [run|backup FILE|restore FILE|check] [flags]")
+		fmt.Fprintln(errOut, "usage: lathmark [run|backup FILE|restore FILE|check] [flags]")
 		fs.PrintDefaults()
 		fmt.Fprintln(errOut, "\nSlack: SLACK_BOT_TOKEN with SLACK_APP_TOKEN (socket mode) or SLACK_SIGNING_SECRET and --http; SLACK_API_URL overrides the API base. Each may be given as NAME_FILE, a file holding the value.")
 	}
@@ -76,7 +76,7 @@ func parseConfig(args []string, getenv func(string) string, errOut io.Writer) (c
 		}
 		return c, err
 	}
-	c.DemoPath = filepath.Join(tempDir(getenv), "clearbot-demo", "demo.db")
+	c.DemoPath = filepath.Join(tempDir(getenv), "lathmark-demo", "demo.db")
 	c.SubArgs = fs.Args()
 	if c.Sub == "" && len(c.SubArgs) > 0 {
 		return c, fmt.Errorf("unexpected argument %q", c.SubArgs[0])
@@ -132,7 +132,7 @@ func secret(getenv func(string) string, name string) (string, error) {
 	return strings.TrimSpace(string(b)), nil
 }
 
-// defaultDataPath is $XDG_DATA_HOME/clearbot/clearbot.db, or under
+// defaultDataPath is $XDG_DATA_HOME/lathmark/lathmark.db, or under
 // ~/.local/share when XDG_DATA_HOME is unset.
 func defaultDataPath(getenv func(string) string) string {
 	base := getenv("XDG_DATA_HOME")
@@ -143,7 +143,7 @@ func defaultDataPath(getenv func(string) string) string {
 		}
 		base = filepath.Join(home, ".local", "share")
 	}
-	return filepath.Join(base, "clearbot", "clearbot.db")
+	return filepath.Join(base, "lathmark", "lathmark.db")
 }
 
 // tempDir is $TMPDIR, or the system's temporary folder.

@@ -1,11 +1,11 @@
-// Command clearbot is the high-jump coaching bot. With Slack credentials in
+// Command lathmark is the high-jump coaching bot. With Slack credentials in
 // the environment it serves the team's Slack workspace; without them it runs
 // in the terminal, one command a line.
 //
-//	clearbot [flags]              run (terminal, or Slack when configured)
-//	clearbot backup [flags] FILE  hot copy of the data file
-//	clearbot restore [flags] FILE put a backup in place of the data file
-//	clearbot check [flags]        verify the data file's consistency
+//	lathmark [flags]              run (terminal, or Slack when configured)
+//	lathmark backup [flags] FILE  hot copy of the data file
+//	lathmark restore [flags] FILE put a backup in place of the data file
+//	lathmark check [flags]        verify the data file's consistency
 package main
 
 import (
@@ -32,7 +32,7 @@ func run(ctx context.Context, args []string, io stdio, getenv func(string) strin
 		if err == errHelp {
 			return 0
 		}
-		fmt.Fprintln(io.Err, "clearbot:", err)
+		fmt.Fprintln(io.Err, "lathmark:", err)
 		return 2
 	}
 	switch cfg.Sub {
@@ -46,7 +46,7 @@ func run(ctx context.Context, args []string, io stdio, getenv func(string) strin
 		err = runBot(ctx, cfg, io)
 	}
 	if err != nil {
-		fmt.Fprintln(io.Err, "clearbot:", err)
+		fmt.Fprintln(io.Err, "lathmark:", err)
 		return 1
 	}
 	return 0

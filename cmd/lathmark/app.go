@@ -9,13 +9,13 @@ import (
 	"sync/atomic"
 	"time"
 
-	"github.com/clearbot-team/clearbot/bot"
-	"github.com/clearbot-team/clearbot/internal/botstore"
-	"github.com/clearbot-team/clearbot/internal/console"
-	"github.com/clearbot-team/clearbot/internal/control"
-	"github.com/clearbot-team/clearbot/internal/demo"
-	"github.com/clearbot-team/clearbot/internal/record"
-	"github.com/clearbot-team/clearbot/store"
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/botstore"
+	"github.com/lathmark-team/lathmark/internal/console"
+	"github.com/lathmark-team/lathmark/internal/control"
+	"github.com/lathmark-team/lathmark/internal/demo"
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/store"
 )
 
 // operatorID is the chat user id of whoever runs the terminal: a head coach.
@@ -113,7 +113,7 @@ func runBot(ctx context.Context, cfg config, io stdio) error {
 	defer a.Close()
 	ctl, err := control.Listen(a.db.Path(), a.db, a.log)
 	if err != nil {
-		// Without the socket, `clearbot backup` cannot reach this bot; the
+		// Without the socket, `lathmark backup` cannot reach this bot; the
 		// bot itself works, so say so and go on.
 		a.log.Warn("hot backups from the command line are unavailable", "err", err)
 	} else {
@@ -139,7 +139,7 @@ func (a *app) runTerminal(ctx context.Context) error {
 		if a.cfg.Demo {
 			where = "the demo squad (Harbour Lane Athletics Club, invented)"
 		}
-		fmt.Fprintf(a.io.Out, "clearbot on %s. Type help, or Ctrl-D to leave.\n", where)
+		fmt.Fprintf(a.io.Out, "lathmark on %s. Type help, or Ctrl-D to leave.\n", where)
 	}
 	return t.Run(ctx)
 }
@@ -166,7 +166,7 @@ func newLogger(level string, w interface{ Write([]byte) (int, error) }) *slog.Lo
 // is running on it (bbolt allows a reader beside the writer).
 func runBackup(ctx context.Context, cfg config, io stdio) error {
 	if len(cfg.SubArgs) != 1 {
-		return errors.New("usage: clearbot backup [--data PATH] FILE")
+		return errors.New("usage: lathmark backup [--data PATH] FILE")
 	}
 	dest := cfg.SubArgs[0]
 	n, err := control.Backup(ctx, cfg.DataPath, dest)
@@ -198,7 +198,7 @@ func backupDirect(cfg config, dest string) (int64, error) {
 // runRestore puts a checked backup in place of the data file.
 func runRestore(cfg config, io stdio) error {
 	if len(cfg.SubArgs) != 1 {
-		return errors.New("usage: clearbot restore [--data PATH] FILE")
+		return errors.New("usage: lathmark restore [--data PATH] FILE")
 	}
 	if err := store.Restore(cfg.SubArgs[0], cfg.DataPath); err != nil {
 		return err
