@@ -43,6 +43,12 @@ type Athlete struct {
 	Notes         string    `json:"notes,omitempty"`
 	Private       bool      `json:"private,omitempty"`
 	BodyDepthM    float64   `json:"body_depth_m,omitempty"` // midline to underside at the apex; 0 = model default
+	// Consent records that a parent's or guardian's consent is on file for
+	// an athlete under 18; set by a head coach, audited.
+	Consent bool `json:"consent,omitempty"`
+	// ChartStyle is the athlete's fixed colour-and-marker slot in charts
+	// (1-based; 0 = not chosen yet).
+	ChartStyle int `json:"chart_style,omitempty"`
 	Created       time.Time `json:"created"`
 }
 
@@ -105,6 +111,13 @@ type Attempt struct {
 	MessageID string `json:"msg,omitempty"` // chat message id; one message logs once
 	LineID    string `json:"line,omitempty"`
 	Note      string `json:"note,omitempty"`
+
+	// Knock is the body part the coach saw touch the bar on a failure
+	// ("head", "shoulders", "back", "hips", "thighs", "calves", "heels",
+	// "hand"); "" when not said.
+	Knock string `json:"knock,omitempty"`
+	// Short marks an attempt from a short approach (take-off load counts).
+	Short bool `json:"short,omitempty"`
 }
 
 // Key identifies an attempt in the store: athlete, time, sequence.
