@@ -31,25 +31,25 @@ const (
 
 // Athlete is one athlete's profile. Zero numeric fields mean "not given".
 type Athlete struct {
-	ID            uint64    `json:"id"`   // assigned by the store, never reused
-	Name          string    `json:"name"` // unique, compared case-insensitively
-	StatureM      float64   `json:"stature_m,omitempty"`
-	MassKg        float64   `json:"mass_kg,omitempty"`
-	Sex           Sex       `json:"sex,omitempty"`
-	TakeoffLeg    Leg       `json:"leg,omitempty"`
-	PersonalBestM float64   `json:"pb_m,omitempty"`
-	BirthYear     int       `json:"birth_year,omitempty"`
-	Group         string    `json:"group,omitempty"`
-	Notes         string    `json:"notes,omitempty"`
-	Private       bool      `json:"private,omitempty"`
-	BodyDepthM    float64   `json:"body_depth_m,omitempty"` // midline to underside at the apex; 0 = model default
+	ID            uint64  `json:"id"`   // assigned by the store, never reused
+	Name          string  `json:"name"` // unique, compared case-insensitively
+	StatureM      float64 `json:"stature_m,omitempty"`
+	MassKg        float64 `json:"mass_kg,omitempty"`
+	Sex           Sex     `json:"sex,omitempty"`
+	TakeoffLeg    Leg     `json:"leg,omitempty"`
+	PersonalBestM float64 `json:"pb_m,omitempty"`
+	BirthYear     int     `json:"birth_year,omitempty"`
+	Group         string  `json:"group,omitempty"`
+	Notes         string  `json:"notes,omitempty"`
+	Private       bool    `json:"private,omitempty"`
+	BodyDepthM    float64 `json:"body_depth_m,omitempty"` // midline to underside at the apex; 0 = model default
 	// Consent records that a parent's or guardian's consent is on file for
 	// an athlete under 18; set by a head coach, audited.
 	Consent bool `json:"consent,omitempty"`
 	// ChartStyle is the athlete's fixed colour-and-marker slot in charts
 	// (1-based; 0 = not chosen yet).
-	ChartStyle int `json:"chart_style,omitempty"`
-	Created       time.Time `json:"created"`
+	ChartStyle int       `json:"chart_style,omitempty"`
+	Created    time.Time `json:"created"`
 }
 
 // Outcome is one attempt's result in the trade's notation.
