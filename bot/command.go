@@ -40,6 +40,7 @@ func allCommands() []command {
 		calcCommands(),
 		digestCommands(),
 		roleCommands(),
+		planCommands(),
 	} {
 		cs = append(cs, group...)
 	}

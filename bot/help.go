@@ -12,6 +12,7 @@ var topicOrder = []struct{ name, about string }{
 	{"calc", "quick calculations: margin, flight, centre of mass, jump test"},
 	{"digest", "the weekly clearance-trend digest"},
 	{"team", "team settings: units, time zone, venue, backups"},
+	{"plan", "suggested bars for a practice or a meet, jump budget"},
 	{"roles", "who may do what; privacy and the audit trail"},
 	{"safety", "what the numbers are and are not; landing, load and youth data"},
 }

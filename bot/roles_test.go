@@ -111,6 +111,9 @@ func TestRoleMatrix(t *testing.T) {
 		{"roles", staff},
 		{"audit 30d", staff},
 		{"forget Kai confirm", headOnly},
+		{"plan Mira", self},
+		{"plan Kai meet steps 1.80 1.85 1.90", staff},
+		{"team jumps 25", headOnly},
 	}
 	for _, tt := range tests {
 		for _, who := range all {

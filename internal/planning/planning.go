@@ -133,7 +133,7 @@ func Make(in Input) (Plan, error) {
 		open = roundCM(p.CeilingM - MinRiseM)
 	}
 	top := p.CeilingM
-	topWhy := "top at her ceiling: the trend is flat"
+	topWhy := "top at the ceiling: the trend is flat"
 	if p.TrendMPerWeek >= 0.005 {
 		top = roundCM(p.CeilingM + MinRiseM)
 		topWhy = fmt.Sprintf("top 2 cm over the ceiling: session bests rise %.1f cm a week", 100*p.TrendMPerWeek)

@@ -165,6 +165,10 @@ type Team struct {
 	DigestChannel string       `json:"digest_channel,omitempty"`
 	DigestSet     bool         `json:"digest_set,omitempty"` // day and minute were chosen by a coach
 
+	// JumpBudget is the practice jump budget per athlete and session that
+	// `plan` keeps to (0 = none).
+	JumpBudget int `json:"jump_budget,omitempty"`
+
 	BackupDir  string `json:"backup_dir,omitempty"`
 	BackupKeep int    `json:"backup_keep,omitempty"`
 }
