@@ -188,6 +188,12 @@ func runDigestWeek(c *call) (Reply, error) {
 func (c *call) digestPreview(tx Tx, t record.Team, d digest.Digest) (Reply, error) {
 	full := rank(c.user.Role) >= rank(record.RoleCoach)
 	r, err := renderDigest(tx, t, d, full)
+	if err == nil && full {
+		var ls []string
+		if ls, err = loadNotes(tx, d.Week, t.Location()); err == nil {
+			r.Notes = append(r.Notes, ls...)
+		}
+	}
 	r.Ephemeral = true
 	r.Direct = nil // a preview sends nothing to anyone else
 	return r, err

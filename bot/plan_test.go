@@ -31,3 +31,12 @@ func TestPlanMeetStepsRule(t *testing.T) {
 	te.must("team jumps 25")
 	contains(t, te.must("plan Mira"), "within the budget of 25 jumps")
 }
+
+// TestDigestTakeoffs: a coach's digest preview counts take-offs (o and x,
+// never passes) per athlete.
+func TestDigestTakeoffs(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Mira height 1.78 pb 1.81")
+	te.must("log Mira 1.60 - 1.65 o 1.70 xo 1.75 xxx")
+	contains(t, te.must("digest now"), "Take-offs Mira: 6 (6 full, 0 short approach)")
+}
