@@ -41,6 +41,7 @@ func allCommands() []command {
 		digestCommands(),
 		roleCommands(),
 		planCommands(),
+		seasonCommands(),
 	} {
 		cs = append(cs, group...)
 	}

@@ -114,6 +114,8 @@ func TestRoleMatrix(t *testing.T) {
 		{"plan Mira", self},
 		{"plan Kai meet steps 1.80 1.85 1.90", staff},
 		{"team jumps 25", headOnly},
+		{"season Mira", staff},
+		{"compare Mira Kai 12w", staff},
 	}
 	for _, tt := range tests {
 		for _, who := range all {
