@@ -93,7 +93,12 @@ func Summarize(as []record.Attempt, pbM float64, loc *time.Location) Season {
 			}
 			if a.Meet && a.BarM > sb+barTolM {
 				sb = a.BarM
-				s.SBProgression = append(s.SBProgression, BestMark{a.Time, a.BarM})
+				n := len(s.SBProgression)
+				if n > 0 && sameDay(s.SBProgression[n-1].Time, a.Time, loc) {
+					s.SBProgression[n-1] = BestMark{a.Time, a.BarM} // one mark per meet: its best
+				} else {
+					s.SBProgression = append(s.SBProgression, BestMark{a.Time, a.BarM})
+				}
 			}
 		}
 	}
@@ -114,4 +119,10 @@ func (s Season) KnockParts() []string {
 		return ks[i] < ks[j]
 	})
 	return ks
+}
+
+func sameDay(a, b time.Time, loc *time.Location) bool {
+	ay, am, ad := a.In(loc).Date()
+	by, bm, bd := b.In(loc).Date()
+	return ay == by && am == bm && ad == bd
 }

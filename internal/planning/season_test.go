@@ -23,8 +23,8 @@ func TestSummarize(t *testing.T) {
 	if s.Jumps != 4 || s.Short != 1 || s.Meets != 1 || s.FirstAttempt != 2 || s.Clearances != 3 {
 		t.Errorf("counts %+v", s)
 	}
-	if len(s.SBProgression) != 2 || s.SBProgression[1].BarM != 1.76 {
-		t.Errorf("SB progression %+v, want 1.70 then 1.76 (practice 1.82 not a mark)", s.SBProgression)
+	if len(s.SBProgression) != 1 || s.SBProgression[0].BarM != 1.76 {
+		t.Errorf("SB progression %+v, want the meet's best 1.76 only (practice 1.82 not a mark)", s.SBProgression)
 	}
 	if b := s.Bands[1]; b.Made != 1 || b.Tried != 1 {
 		t.Errorf("PB−10 band %+v", b)
