@@ -150,10 +150,10 @@ func TestCalcCaution(t *testing.T) {
 	te := calcEngine(t)
 	for line, want := range map[string]bool{
 		"margin 1.80 v 4.3 h0 1.20 height 1.78 from 1.0 across 3.5": true, // move the take-off
-		"margin 2.20 v 4.0 h0 1.26 height 1.80":                    true, // more vz
+		"margin 2.20 v 4.0 h0 1.26 height 1.80":                     true, // more vz
 		"margin 1.80 v 4.3 h0 1.20 height 1.78 from 1.5 across 3.5": false,
-		"margin 1.80 v 4.3 h0 1.22 arch 90 height 1.78":            false,
-		"flight v 4.4 h0 1.25":                                     false,
+		"margin 1.80 v 4.3 h0 1.22 arch 90 height 1.78":             false,
+		"flight v 4.4 h0 1.25":                                      false,
 	} {
 		r := te.run(line)
 		if got := r.Caution != ""; got != want || !r.OK() {
