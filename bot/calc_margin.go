@@ -23,6 +23,8 @@ var marginSpecs = []optionSpec{
 	{Key: "depth", Kind: kindLength},
 	{Key: "from", Aliases: []string{"dist", "distance", "takeoff"}, Kind: kindLength},
 	{Key: "speed", Aliases: []string{"vx"}, Kind: kindSpeed},
+	{Key: "angle", Kind: kindAngle},
+	{Key: "across", Kind: kindSpeed},
 	{Key: "model", Kind: kindWord},
 	{Key: "sex", Kind: kindWord},
 	{Key: "table", Kind: kindWord},
@@ -201,16 +203,34 @@ func runMargin(c *call) (Reply, error) {
 		return Reply{}, usageErr("margin 1.80 peak 2.02 h0 1.22 height 1.78", "peak %s is below the take-off c.m. height %s; the c.m. rises after take-off", units.Length(peak, imp), units.Length(h0, imp))
 	}
 
+	var r0flags []string
+	if vz > 0 {
+		if f, bad := mechanics.CheckRange(mechanics.QVz, vz, b.segmentBody().Sex); bad {
+			r0flags = append(r0flags, f.Line)
+		}
+	}
 	in := mechanics.MarginInput{BarM: m.barM, H0M: h0, VzMS: vz, PeakM: peak, GMS2: env.gMS2, StatureM: b.statureM, Sigma: mechanics.DefaultUncertainty()}
 
 	// Where the c.m. is judged: at the bar plane, or at the peak.
 	vx := m.vxMS
 	if m.hasD {
-		if !m.hasVx {
-			vx = defaultVxMS
-			notes = append(notes, fmt.Sprintf("horizontal speed assumed %s, typical at the end of a flop take-off (add speed VX to set it)", calcSpeed(vx)))
+		ai := mechanics.AcrossInput{SpeedMS: m.vxMS, DM: m.dM, VzMS: vz, GMS2: env.gMS2, Sex: b.segmentBody().Sex}
+		ai.AngleDeg, _ = m.o.num("angle")
+		ai.AcrossMS, _ = m.o.num("across")
+		if ai.VzMS == 0 && peak > h0 {
+			ai.VzMS = math.Sqrt(2 * env.gMS2 * (peak - h0))
 		}
+		ac, err := mechanics.ResolveAcross(ai)
+		if err != nil {
+			return Reply{}, calcErr(err, "margin 1.80 v 4.3 height 1.78 from 1.0 speed 4.0 angle 37")
+		}
+		vx = ac.MS
+		notes = append(notes, marginAcrossNote(ac))
 		in.DM, in.VxMS = m.dM, vx
+		in.Sigma.VxMS = ac.SigmaMS()
+		if f, bad := mechanics.CheckRange(mechanics.QTakeoffDist, m.dM, ai.Sex); bad {
+			r0flags = append(r0flags, f.Line)
+		}
 	} else {
 		notes = append(notes, "c.m. judged at its peak (add from D speed VX to judge it where it crosses the bar plane)")
 	}
@@ -314,6 +334,7 @@ func runMargin(c *call) (Reply, error) {
 	if line != "" {
 		r.Lines = append(r.Lines, line)
 	}
+	r.Lines = append(r.Lines, r0flags...)
 	if change {
 		r.Caution = calcCaution
 	}
@@ -352,7 +373,7 @@ func marginInputName(in string) string {
 	case "D":
 		return "take-off distance"
 	case "vx":
-		return "horizontal speed"
+		return "speed across the bar"
 	case "arch":
 		return "arch"
 	case "length":
@@ -389,14 +410,17 @@ func marginReadout(res mechanics.MarginResult, barM, dM float64, vxOnly bool, vx
 	need := res.RequiredM - barM
 	if res.AtBarPlane && res.VzMS > 0 {
 		past := res.PeakPastBarM
-		if math.Abs(past) >= peakSpotM {
-			atPeak := res.PeakM - res.RequiredM
+		if atPeak := res.PeakM - res.RequiredM; math.Abs(past) >= peakSpotM && atPeak > 0 {
+			outside := ""
+			if f, bad := mechanics.CheckRange(mechanics.QTakeoffDist, dM+res.TakeoffShiftM, mechanics.SexUnknown); bad {
+				outside = " That spot is outside the published take-off distances (" + f.Line + ")."
+			}
 			where, move := "past", "further out"
 			if past < 0 {
 				where, move = "before", "closer in"
 			}
-			return fmt.Sprintf("The peak falls %s %s the bar: a take-off about %s %s would put it over the bar (margin then %s).",
-				calcShift(past, imp), where, calcShift(res.TakeoffShiftM, imp), move, units.Small(atPeak, imp)), true, nil
+			return fmt.Sprintf("The peak falls %s %s the bar: a take-off about %s %s would put it over the bar (margin then %s).%s",
+				calcShift(past, imp), where, calcShift(res.TakeoffShiftM, imp), move, units.Small(atPeak, imp), outside), true, nil
 		}
 		if res.Clears {
 			return "The peak falls over the bar: the take-off spot suits this take-off.", false, nil
@@ -448,4 +472,24 @@ func hayH3(h3M float64, imp bool) string {
 		return "(" + calcSigned(h3M, imp) + ")"
 	}
 	return units.Length(h3M, imp)
+}
+
+// marginAcrossNote says which speed across the bar was used and where it
+// came from (mechanics take-off direction model).
+func marginAcrossNote(a mechanics.AcrossSpeed) string {
+	switch a.Source {
+	case mechanics.AcrossTyped:
+		return fmt.Sprintf("speed across the bar %s, as typed", calcSpeed(a.MS))
+	case mechanics.AcrossSpeedAngle:
+		return fmt.Sprintf("speed across the bar %s = %s × sin %.0f°", calcSpeed(a.MS), calcSpeed(a.SpeedMS), a.AngleDeg)
+	case mechanics.AcrossAngleAssumed:
+		return fmt.Sprintf("speed across the bar %s = %s × sin %.0f°, angle to the bar assumed from elite run-ups (Dapena, from memory; add angle A)", calcSpeed(a.MS), calcSpeed(a.SpeedMS), a.AngleDeg)
+	case mechanics.AcrossSpeedAssumed:
+		return fmt.Sprintf("speed across the bar %s = %s (assumed, Dapena from memory) × sin %.0f° (add speed V)", calcSpeed(a.MS), calcSpeed(a.SpeedMS), a.AngleDeg)
+	}
+	clamp := ""
+	if a.Clamped {
+		clamp = ", moved to the edge of the published range"
+	}
+	return fmt.Sprintf("speed across the bar assumed %s ± %.2f = g·D/vz, the c.m. peaking at the bar plane as published (Dapena 1980)%s; add across VX, or speed V angle A", calcSpeed(a.MS), a.SigmaAssumedMS, clamp)
 }

@@ -93,7 +93,7 @@ func TestCalcIssueLines(t *testing.T) {
 		{"calc-margin", "margin 1.80 v 4.3 h0 1.22 arch 90 height 1.78", []string{" m,", " cm ±", " s after", "m/s²"}},
 		{"calc-margin-for", "margin 1.80 for Mira v 4.3", []string{"Margin at 1.80 m for Mira", " cm ±", "1.25 m = 0.70 × stature"}},
 		{"calc-margin-ftin", "margin 5-11 v 4.3 h0 1.20 height 1.75", []string{"Margin at 1.80 m", " cm ±"}},
-		{"calc-margin-barplane", "margin 1.80 v 4.3 h0 1.20 height 1.78 from 1.0 speed 3.5", []string{"C.m. at the bar plane", " s after", "further out"}},
+		{"calc-margin-barplane", "margin 1.80 v 4.3 h0 1.20 height 1.78 from 1.0 across 3.5", []string{"C.m. at the bar plane", " s after", "further out"}},
 		{"calc-flight", "flight v 4.4 h0 1.25", []string{"0.987 m", " s = vz/g", "0.70 m"}},
 		{"calc-flight-time", "flight time 0.60", []string{"44.1 cm", "2.94 m/s", "not for a high jump"}},
 		{"calc-com-arc", "com arch 90 height 1.80", []string{"11.4 cm", "below the underside"}},
@@ -124,8 +124,8 @@ func TestCalcMoreReplies(t *testing.T) {
 		{"calc-margin-knock", "margin 2.20 v 4.0 h0 1.26 height 1.80", []string{"knocks", "To clear, this take-off needs about vz"}},
 		{"calc-margin-agree", "margin 1.80 v 4.3 peak 2.17 h0 1.22 height 1.78", []string{"agrees with vz 4.30 m/s", "used"}},
 		{"calc-margin-peak", "margin 1.90 peak 1.92 h0 1.24 height 1.78", []string{"C.m. peak:", "too close to call"}},
-		{"calc-margin-spot", "margin 1.80 v 4.3 h0 1.20 height 1.78 from 1.5 speed 3.5", []string{"falls over the bar"}},
-		{"calc-margin-closer", "margin 1.80 v 4.3 h0 1.20 height 1.78 from 2.0", []string{"before the bar", "closer in", "horizontal speed assumed 4.00 m/s"}},
+		{"calc-margin-spot", "margin 1.80 v 4.3 h0 1.20 height 1.78 from 1.5 across 3.5", []string{"falls over the bar"}},
+		{"calc-margin-closer", "margin 1.80 v 4.3 h0 1.20 height 1.78 from 2.0", []string{"before the bar", "closer in", "speed across the bar assumed"}},
 		{"calc-margin-vxonly", "margin 1.80 v 4.3 h0 1.22 height 1.78 speed 3.5", []string{"past the take-off"}},
 		{"calc-flight-noh0", "flight v 4.4", []string{"no h0 given", "0.897 s"}},
 		{"calc-jump-test", "jump test 580ms", []string{"Jump test:", "0.580 s"}},
@@ -149,11 +149,11 @@ func TestCalcMoreReplies(t *testing.T) {
 func TestCalcCaution(t *testing.T) {
 	te := calcEngine(t)
 	for line, want := range map[string]bool{
-		"margin 1.80 v 4.3 h0 1.20 height 1.78 from 1.0 speed 3.5": true, // move the take-off
-		"margin 2.20 v 4.0 h0 1.26 height 1.80":                    true, // more vz
-		"margin 1.80 v 4.3 h0 1.20 height 1.78 from 1.5 speed 3.5": false,
-		"margin 1.80 v 4.3 h0 1.22 arch 90 height 1.78":            false,
-		"flight v 4.4 h0 1.25":                                     false,
+		"margin 1.80 v 4.3 h0 1.20 height 1.78 from 1.0 across 3.5": true, // move the take-off
+		"margin 2.20 v 4.0 h0 1.26 height 1.80":                     true, // more vz
+		"margin 1.80 v 4.3 h0 1.20 height 1.78 from 1.5 across 3.5": false,
+		"margin 1.80 v 4.3 h0 1.22 arch 90 height 1.78":             false,
+		"flight v 4.4 h0 1.25":                                      false,
 	} {
 		r := te.run(line)
 		if got := r.Caution != ""; got != want || !r.OK() {
@@ -235,7 +235,7 @@ func TestCalcRefusals(t *testing.T) {
 		{"calc-err-com-noheight", "com arch 90", bot.KindUsage, []string{"height"}},
 		{"calc-err-depth", "com height 1.80 depth 60cm", bot.KindUsage, []string{"depth 0.60 m is outside 5–25 cm"}},
 		{"calc-err-vz-zero", "margin 1.80 v 0 height 1.78", bot.KindUsage, []string{"vz 0 m/s", "v 4.3"}},
-		{"calc-err-too-slow", "margin 1.80 v 4.3 height 1.78 from 5 speed 0.1", bot.KindUsage, []string{"back at take-off height", "check from and speed"}},
+		{"calc-err-too-slow", "margin 1.80 v 4.3 height 1.78 from 5 across 0.1", bot.KindUsage, []string{"back at take-off height", "check from and speed"}},
 		{"calc-err-jump-test", "jump test 1.5", bot.KindUsage, []string{"1.5 s is not a jump-test flight time"}},
 		{"calc-err-sex", "com height 1.80 model segments sex x", bot.KindUsage, []string{`sex "x"`}},
 	}
@@ -510,7 +510,7 @@ func TestCalcMarginNumbers(t *testing.T) {
 		{line: "margin 5-11 v 4.3 h0 1.20 height 1.75 depth 11cm", barM: 71 * calcMetresPerInch, vzMS: 4.3, h0M: 1.20, archDeg: 90, lM: 1.75, depthM: 0.11},
 		// Feet-inches anywhere: 6-0 = 72 in, 4-0 = 48 in, 5-10 = 70 in, 4.5in.
 		{line: "margin 6-0 v 4.4 h0 4-0 arch 100 height 5-10 depth 4.5in", barM: 72 * calcMetresPerInch, vzMS: 4.4, h0M: 48 * calcMetresPerInch, archDeg: 100, lM: 70 * calcMetresPerInch, depthM: 4.5 * calcMetresPerInch},
-		{line: "margin 180cm v 4.3 h0 120cm height 178cm depth 11cm from 1.0 speed 3.5", barM: 1.80, vzMS: 4.3, h0M: 1.20, archDeg: 90, lM: 1.78, depthM: 0.11, dM: 1.0, vxMS: 3.5},
+		{line: "margin 180cm v 4.3 h0 120cm height 178cm depth 11cm from 1.0 across 3.5", barM: 1.80, vzMS: 4.3, h0M: 1.20, archDeg: 90, lM: 1.78, depthM: 0.11, dM: 1.0, vxMS: 3.5},
 	}
 	for _, c := range cases {
 		r := te.run(c.line)
@@ -587,4 +587,30 @@ func TestCalcLocalGravity(t *testing.T) {
 	r = te.run("margin 1.80 for Mira v 4.3")
 	contains(t, r, "at the venue", "rises")
 	golden(t, "calc-margin-local", plain(r))
+}
+
+// Issue 14's lines. Check (Dapena 1980: the c.m. peaks close to the bar
+// plane; take-off 0.9–1.3 m from it, from memory): with no horizontal
+// speed typed, a take-off 1.0 m out gets no advice to move 30 cm or more,
+// and the reply says which speed across the bar it assumed; with speed 4.0
+// angle 37 the bar plane is reached at 4.0·sin 37° = 2.41 m/s (hand
+// computation); implausible values carry a one-line flag naming the range.
+func TestCalcTakeoffDirectionLines(t *testing.T) {
+	te := calcEngine(t)
+	r := te.run("margin 2.00 v 4.4 h0 1.25 height 1.86 from 1.0")
+	txt := plain(r)
+	if strings.Contains(txt, "further out") || strings.Contains(txt, "closer in") {
+		t.Errorf("take-off move advised for a take-off inside the published range:\n%s", txt)
+	}
+	if !strings.Contains(txt, "speed across the bar assumed 2.23 m/s") {
+		t.Errorf("assumed speed across the bar not stated:\n%s", txt)
+	}
+	r = te.run("margin 2.00 v 4.4 h0 1.25 height 1.86 from 1.0 speed 4.0 angle 37")
+	if txt = plain(r); !strings.Contains(txt, "at 2.41 m/s") {
+		t.Errorf("bar plane not from 4.0·sin 37° = 2.41 m/s:\n%s", txt)
+	}
+	r = te.run("margin 2.00 v 6.5 h0 1.25 height 1.86")
+	if txt = plain(r); !strings.Contains(txt, "4.3–4.7 m/s measured in elite men") && !strings.Contains(txt, "measured in elite") {
+		t.Errorf("vz 6.5 m/s not flagged:\n%s", txt)
+	}
 }

@@ -50,6 +50,9 @@ const (
 	FieldH2          = "H2"
 	FieldH3          = "H3"
 	FieldNeed        = "need"
+	FieldAngle       = "angle"
+	FieldFrames      = "frames"
+	FieldFPS         = "fps"
 )
 
 // Accepted ranges. They bound what a human high jumper can do, with room to
