@@ -82,6 +82,7 @@ func calcCommands() []command {
 			example: exampleCOM,
 			summary: "where the c.m. lies below the apex of the arched body and below the bar contact",
 			run:     runCOM},
+		crossingCommand(),
 	}
 }
 
