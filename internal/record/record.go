@@ -118,6 +118,10 @@ type Attempt struct {
 	Knock string `json:"knock,omitempty"`
 	// Short marks an attempt from a short approach (take-off load counts).
 	Short bool `json:"short,omitempty"`
+	// RuleBreach, when not empty, says which competition rule the meet
+	// line broke (stored after `confirm`); such an attempt never counts
+	// for a best.
+	RuleBreach string `json:"breach,omitempty"`
 }
 
 // Key identifies an attempt in the store: athlete, time, sequence.
