@@ -608,3 +608,27 @@ func TestLogModelAssumptionsInTeamUnits(t *testing.T) {
 		}
 	}
 }
+
+// TestLogKnockAndShort: the body part the coach saw bring the bar down and a
+// short approach are stored with the attempts and shown by history.
+func TestLogKnockAndShort(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Mira height 1.78 mass 63 sex f pb 1.81")
+	te.must("log Mira 1.70 o 1.75 x knock calves o short")
+	as := logAttempts(t, te.DB, "Mira")
+	if notation(as) != "oxo" {
+		t.Fatalf("stored %q, want oxo", notation(as))
+	}
+	for i, a := range as {
+		if wantKnock := map[int]string{1: "calves"}[i]; a.Knock != wantKnock || !a.Short {
+			t.Errorf("attempt %d: knock %q short %v, want knock %q, short", i, a.Knock, a.Short, wantKnock)
+		}
+	}
+	h := te.must("history Mira")
+	if h.Table == nil || len(h.Table.Rows) != 1 || h.Table.Rows[0][1] != "practice, short" {
+		t.Errorf("history table = %+v", h.Table)
+	}
+	if len(h.Notes) != 1 || !strings.Contains(h.Notes[0], "1.75 calves") {
+		t.Errorf("history notes = %q, want the knock at 1.75", h.Notes)
+	}
+}

@@ -141,6 +141,7 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 				AthleteID: ath.ID, Time: c.now, BarM: g.BarM, Outcome: j.Outcome, Meet: ln.Meet,
 				ApproachMS: j.Meas.ApproachMS, TakeoffDistM: j.Meas.TakeoffDistM, PeakM: j.Meas.PeakM, VzMS: j.Meas.VzMS,
 				HasCoachMargin: j.Meas.HasCoachMargin, CoachMarginM: j.Meas.CoachMarginM,
+				Knock: j.Knock, Short: ln.Short,
 				LoggedBy: c.lineOwner(), MessageID: c.req.MessageID, LineID: lineID,
 			})
 		}
@@ -635,7 +636,14 @@ func historyReply(ath record.Athlete, as []record.Attempt, weeks int, from time.
 			best = units.Bar(b.BarM, imp)
 		}
 		made, tried := madeCount(s.Attempts)
-		r.Table.Rows = append(r.Table.Rows, []string{s.Day.Format("Mon 2006-01-02"), s.kind(), runsText(heightRuns(s.Attempts), imp), best, madeText(made, tried)})
+		kind := s.kind()
+		if s.short() {
+			kind += ", short"
+		}
+		r.Table.Rows = append(r.Table.Rows, []string{s.Day.Format("Mon 2006-01-02"), kind, runsText(heightRuns(s.Attempts), imp), best, madeText(made, tried)})
+		if k := knocksText(s.Attempts, imp); k != "" {
+			r.Notes = append(r.Notes, fmt.Sprintf("Knocks %s: %s", s.Day.Format("Mon 2006-01-02"), k))
+		}
 	}
 	made, tried := madeCount(as)
 	best := "nothing cleared"

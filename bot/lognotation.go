@@ -6,6 +6,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/lathmark-team/lathmark/internal/mechanics"
 	"github.com/lathmark-team/lathmark/internal/record"
 	"github.com/lathmark-team/lathmark/internal/units"
 )
@@ -51,6 +52,7 @@ func (m jumpMeasures) any() bool {
 type jumpSpec struct {
 	Outcome record.Outcome
 	Meas    jumpMeasures
+	Knock   string // the body part the coach saw touch the bar; "" not said
 }
 
 // barGroup is one bar height and the attempts typed after it.
@@ -66,6 +68,7 @@ type logLine struct {
 	Athlete string // as typed: a name (may be several words), "me" or a mention
 	Groups  []barGroup
 	Meet    bool
+	Short   bool // a short-approach session (take-off load counts)
 	Note    string
 }
 
@@ -90,6 +93,7 @@ const (
 	logTakeoff
 	logPeak
 	logVz
+	logShort
 )
 
 // logKeyword recognises the option words of a log line.
@@ -111,6 +115,8 @@ func logKeyword(w string) (logWordKind, bool) {
 		return logPeak, true
 	case "vz", "v":
 		return logVz, true
+	case "short", "short-approach":
+		return logShort, true
 	}
 	return 0, false
 }
@@ -118,7 +124,7 @@ func logKeyword(w string) (logWordKind, bool) {
 // logVocabulary is every word a log line knows, for did-you-mean.
 func logVocabulary() []string {
 	return []string{"meet", "practice", "note", "by", "approach", "takeoff", "peak", "vz",
-		"clear", "made", "miss", "knock", "pass", "xo", "xxo", "xxx"}
+		"clear", "made", "miss", "knock", "pass", "short", "xo", "xxo", "xxx"}
 }
 
 // jumpMeasureSpec says how a measurement keyword's value is read and bounded.
@@ -146,6 +152,42 @@ func jumpMeasureFor(k logWordKind) jumpMeasureSpec {
 	default:
 		return jumpMeasureSpec{"vz", 1, 6.5, "m/s", "vz 4.3"}
 	}
+}
+
+// knockPart reads "knock PART" at ts[i]: the body part the coach saw bring
+// the bar down. ok is false when ts[i] is not a knock word followed by a
+// body part of the crossing model (head, shoulders, back, hips, thighs,
+// calves, heels, hand; a singular such as "calf" or "heel" is accepted).
+func knockPart(ts []token, i int) (string, bool) {
+	switch ts[i].Lower {
+	case "knock", "knocked", "hit", "touched":
+	default:
+		return "", false
+	}
+	if i+1 >= len(ts) {
+		return "", false
+	}
+	w := ts[i+1].Lower
+	switch w {
+	case "calf":
+		w = "calves"
+	case "heel":
+		w = "heels"
+	case "hip":
+		w = "hips"
+	case "thigh":
+		w = "thighs"
+	case "shoulder":
+		w = "shoulders"
+	case "hands":
+		w = "hand"
+	}
+	for _, p := range mechanics.BodyParts() {
+		if string(p) == w {
+			return w, true
+		}
+	}
+	return "", false
 }
 
 // notationWord maps one typed word to outcomes. ok is false when the word is
@@ -316,6 +358,9 @@ func parseLogLine(ts []token) (logLine, error) {
 			case logPractice:
 				practiceWord = t.Raw
 				continue
+			case logShort:
+				ln.Short = true
+				continue
 			case logNote:
 				note := joinRaw(ts[i+1:])
 				if inline {
@@ -353,6 +398,23 @@ func parseLogLine(ts []token) (logLine, error) {
 			if err := setMeasure(&j.Meas, kind, spec, t.Raw, value, example); err != nil {
 				return ln, err
 			}
+			continue
+		}
+		if part, ok := knockPart(ts, i); ok {
+			if cur < 0 {
+				return ln, usageErr(example+" knock calves", "%q needs a bar height before it, e.g. log %s 2.00 x knock calves", t.Raw, ln.Athlete)
+			}
+			g := &ln.Groups[cur]
+			if j := lastJump(); j != nil && j.Outcome == record.Failed && j.Knock == "" {
+				j.Knock = part // "2.00 x knock calves": the x was that knock
+			} else {
+				g.Marks = append(g.Marks, t.Raw)
+				g.Jumps = append(g.Jumps, jumpSpec{Outcome: record.Failed, Knock: part})
+				if len(g.Jumps) > logMaxTries {
+					return ln, checkHeightMarks(*g, ln.Athlete, example)
+				}
+			}
+			i++ // the body part word
 			continue
 		}
 		if outs, ok := notationWord(t.Lower); ok {

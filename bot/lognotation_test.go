@@ -43,6 +43,25 @@ func TestParseLogLine(t *testing.T) {
 				t.Errorf("measurements %+v", m)
 			}
 		}},
+		// "knock PART" names what brought the bar down on the x before it;
+		// alone it is itself the failure. "knock" without a part stays a
+		// plain failure word, as before.
+		{line: "Kai 2.00 x knock calves o", athlete: "Kai", groups: "2 xo", check: func(t *testing.T, ln logLine) {
+			if j := ln.Groups[0].Jumps; j[0].Knock != "calves" || j[1].Knock != "" {
+				t.Errorf("knock on %+v", j)
+			}
+		}},
+		{line: "Kai 2.00 knock heel xx", athlete: "Kai", groups: "2 xxx", check: func(t *testing.T, ln logLine) {
+			if j := ln.Groups[0].Jumps; j[0].Knock != "heels" || j[1].Knock != "" {
+				t.Errorf("knock on %+v", j)
+			}
+		}},
+		{line: "Kai 2.00 x knock x", athlete: "Kai", groups: "2 xxx"},
+		{line: "Kai 1.80 o 1.85 xo short", athlete: "Kai", groups: "1.8 o, 1.85 xo", check: func(t *testing.T, ln logLine) {
+			if !ln.Short {
+				t.Error("short not read")
+			}
+		}},
 		// Measurements go with the jump written just before them.
 		{line: "Kai 1.80 x peak 1.75 o peak 1.84 vz 4.2", athlete: "Kai", groups: "1.8 xo", check: func(t *testing.T, ln logLine) {
 			j := ln.Groups[0].Jumps

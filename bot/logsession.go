@@ -102,6 +102,28 @@ type jumpSession struct {
 }
 
 // kind names the session: meet, practice, or both on one day.
+// short reports whether any attempt of the session came from a short approach.
+func (s jumpSession) short() bool {
+	for _, a := range s.Attempts {
+		if a.Short {
+			return true
+		}
+	}
+	return false
+}
+
+// knocksText lists the logged knocks of a session by bar, in order:
+// "2.00 calves, 2.00 hips". Empty when none was logged.
+func knocksText(as []record.Attempt, imp bool) string {
+	var parts []string
+	for _, a := range as {
+		if a.Outcome == record.Failed && a.Knock != "" {
+			parts = append(parts, units.Bar(a.BarM, imp)+" "+a.Knock)
+		}
+	}
+	return strings.Join(parts, ", ")
+}
+
 func (s jumpSession) kind() string {
 	meet, practice := false, false
 	for _, a := range s.Attempts {
