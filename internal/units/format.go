@@ -12,26 +12,26 @@ func FeetInches(m float64) (ft, in int) {
 	return total / 12, total % 12
 }
 
-// Length formats metres for a reply: "1.78 m" (metric) or "5-10" (imperial,
-// feet-inches to the nearest inch, the trade's own notation).
+// Length formats metres for a reply: "1.78 m" (metric) or "5-10½" (imperial,
+// feet-inches to the quarter inch, the trade's own notation).
 func Length(m float64, imperial bool) string {
 	if imperial {
-		ft, in := FeetInches(m)
-		return fmt.Sprintf("%d-%d", ft, in)
+		return FeetInchesQuarter(m)
 	}
 	return fmt.Sprintf("%.2f m", m)
 }
 
-// Bar formats a bar height compactly for tables: "1.78" or "5-10".
+// Bar formats a bar height compactly for tables: "1.78" or "5-10¼".
 func Bar(m float64, imperial bool) string {
 	if imperial {
-		ft, in := FeetInches(m)
-		return fmt.Sprintf("%d-%d", ft, in)
+		return FeetInchesQuarter(m)
 	}
 	return fmt.Sprintf("%.2f", m)
 }
 
-// Small formats a small signed length such as a margin: "+3.0 cm" or "+1.2 in".
+// Small formats a small signed length such as a margin: "+3.0 cm" or
+// "+1.2 in" (tenths, for model outputs with an uncertainty; InchesQuarter
+// writes a length set or measured to the quarter inch).
 func Small(m float64, imperial bool) string {
 	if imperial {
 		return fmt.Sprintf("%+.1f in", m/MetresPerInch)

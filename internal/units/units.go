@@ -33,6 +33,7 @@ func (e *Error) Error() string { return fmt.Sprintf("%q: %s", e.Word, e.Reason) 
 // ParseLength reads a length and returns metres. Accepted forms:
 //
 //	1.78  1.78m  178cm  1780mm  5-10  5'10"  5'10  5ft10  5ft10in  70in  6ft
+//	5-4½  5-4.5  5-4 1/2  5' 4"  5’ 4½”  (quarter and half inches, any quotes or none)
 //
 // A bare number is metres below 100 and centimetres from 100 to under 300
 // (a phone user typing "178" means centimetres); larger bare numbers are
@@ -42,7 +43,8 @@ func (e *Error) Error() string { return fmt.Sprintf("%q: %s", e.Word, e.Reason) 
 func ParseLength(word string) (float64, error) {
 	s := strings.ToLower(strings.TrimSpace(word))
 	s = strings.ReplaceAll(s, ",", ".")
-	s = strings.NewReplacer("’", "'", "′", "'", "″", `"`, "”", `"`, "''", `"`).Replace(s)
+	s = strings.NewReplacer("’", "'", "‘", "'", "′", "'", "″", `"`, "”", `"`, "“", `"`, "''", `"`).Replace(s)
+	s = normaliseFractions(s)
 	if s == "" {
 		return 0, &Error{word, "empty length"}
 	}
