@@ -632,3 +632,21 @@ func TestLogKnockAndShort(t *testing.T) {
 		t.Errorf("history notes = %q, want the knock at 1.75", h.Notes)
 	}
 }
+
+// TestLogImperialQuarterInches: a bar typed 5-4.5 is 64.5 in = 1.6383 m
+// (NIST SP 811: 1 in = 0.0254 m exactly) and history writes it in the
+// trade's style, 5-4½.
+func TestLogImperialQuarterInches(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("team units imperial")
+	te.must("athlete add Lea height 5-6 pb 5-5")
+	te.must("log Lea 5-4.5 o")
+	as := logAttempts(t, te.DB, "Lea")
+	if len(as) != 1 || math.Abs(as[0].BarM-64.5*0.0254) > 1e-9 {
+		t.Fatalf("stored %+v, want one attempt at 1.6383 m", as)
+	}
+	h := te.must("history Lea")
+	if h.Table == nil || len(h.Table.Rows) != 1 || h.Table.Rows[0][2] != "5-4½ o" {
+		t.Errorf("history table = %+v, want 5-4½ o", h.Table)
+	}
+}
