@@ -117,6 +117,19 @@ func (c *call) mayActFor(a record.Athlete) error {
 		a.Name, withArticle(roleName(c.user.Role)))
 }
 
+// athleteFor finds the named athlete and checks that the speaker may log
+// for or read them (mayActFor): the opening of every per-athlete command.
+func (c *call) athleteFor(tx Tx, name string) (record.Athlete, error) {
+	ath, err := c.findAthlete(tx, name)
+	if err != nil {
+		return record.Athlete{}, err
+	}
+	if err := c.mayActFor(ath); err != nil {
+		return record.Athlete{}, err
+	}
+	return ath, nil
+}
+
 // view runs fn in a read-only transaction.
 func (c *call) view(fn func(Tx) error) error {
 	return c.e.store.View(c.ctx, fn)

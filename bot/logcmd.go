@@ -113,11 +113,8 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 		return Reply{}, err
 	}
 	imp := imperial(team)
-	ath, err := c.findAthlete(tx, ln.Athlete)
+	ath, err := c.athleteFor(tx, ln.Athlete)
 	if err != nil {
-		return Reply{}, err
-	}
-	if err := c.mayActFor(ath); err != nil {
 		return Reply{}, err
 	}
 	day := localDay(c.now, loc)
@@ -602,11 +599,8 @@ func runHistory(c *call) (Reply, error) {
 		if err != nil {
 			return err
 		}
-		ath, err := c.findAthlete(tx, name)
+		ath, err := c.athleteFor(tx, name)
 		if err != nil {
-			return err
-		}
-		if err := c.mayActFor(ath); err != nil {
 			return err
 		}
 		to := localDay(c.now, loc).AddDate(0, 0, 1)
@@ -677,11 +671,8 @@ func runBest(c *call) (Reply, error) {
 			return err
 		}
 		imp := imperial(team)
-		ath, err := c.findAthlete(tx, name)
+		ath, err := c.athleteFor(tx, name)
 		if err != nil {
-			return err
-		}
-		if err := c.mayActFor(ath); err != nil {
 			return err
 		}
 		year := c.now.In(loc).Year()

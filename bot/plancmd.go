@@ -106,11 +106,8 @@ func runPlan(c *call) (Reply, error) {
 		if err != nil {
 			return err
 		}
-		ath, err := c.findAthlete(tx, name)
+		ath, err := c.athleteFor(tx, name)
 		if err != nil {
-			return err
-		}
-		if err := c.mayActFor(ath); err != nil {
 			return err
 		}
 		end := localDay(c.now, loc).AddDate(0, 0, 1)
