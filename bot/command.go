@@ -24,6 +24,9 @@ type command struct {
 	example string   // a line that works as typed
 	summary string   // one line for help
 	access  access
+	// details says the command answers short by default and keeps the full
+	// read-out in Reply.Details; a trailing word "more" asks for it.
+	details bool
 	run     func(c *call) (Reply, error)
 }
 

@@ -77,6 +77,7 @@ func (e *Engine) Handle(ctx context.Context, req Request) (reply Reply) {
 	if err != nil {
 		return e.refusal(req, err)
 	}
+	args, more := wantsMore(cmd, args)
 	c := &call{ctx: ctx, e: e, req: req, cmd: cmd, args: args, now: req.Time}
 	if err := c.loadSpeaker(); err != nil {
 		return e.refusal(req, err)
@@ -88,7 +89,19 @@ func (e *Engine) Handle(ctx context.Context, req Request) (reply Reply) {
 	if err != nil {
 		return e.refusal(req, err)
 	}
+	if more && r.Details != nil {
+		return *r.Details
+	}
 	return r
+}
+
+// wantsMore strips a trailing "more" from the arguments of a command that
+// offers details, and reports whether it was there.
+func wantsMore(cmd command, args []token) ([]token, bool) {
+	if !cmd.details || len(args) == 0 || args[len(args)-1].Lower != "more" {
+		return args, false
+	}
+	return args[:len(args)-1], true
 }
 
 // refusal turns an error into a reply: a UserError's own message, or a

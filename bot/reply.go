@@ -48,6 +48,12 @@ type Reply struct {
 	Files       []File   // attachments: a chart, a CSV export
 	Actions     []Action // buttons on a phone; each runs a command line
 	Direct      []Direct // messages to other people (private digest lines)
+	// Details is the full read-out behind a short reply: every term, every
+	// assumption with its source, the uncertainty budget. Nil when the reply
+	// is already complete. The engine returns it instead of the short reply
+	// when the line ends in the word "more" (for commands that offer
+	// details); Slack shows a Details button that expands the same message.
+	Details *Reply
 }
 
 // Field is one labelled value, e.g. {"Margin", "+4.1 ± 2.3 cm"}.
