@@ -18,6 +18,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"log/slog"
 	"os"
 	"path/filepath"
 	"runtime/debug"
@@ -65,6 +66,32 @@ type Options struct {
 	// InitialMmapSize is the memory map reserved at open, in bytes; 0 means
 	// DefaultInitialMmapSize. (On Windows bbolt grows the file to it.)
 	InitialMmapSize int
+	// Logger receives the warning when an existing data file was readable
+	// by others and Open tightened it to 0600; nil discards.
+	Logger *slog.Logger
+}
+
+// tightenMode sets an existing data file with looser permissions than 0600
+// back to 0600 (it holds personal data), with a warning.
+func tightenMode(path string, log *slog.Logger) error {
+	fi, err := os.Stat(path)
+	if errors.Is(err, os.ErrNotExist) {
+		return nil
+	}
+	if err != nil {
+		return fmt.Errorf("store: open %s: %w", path, err)
+	}
+	mode := fi.Mode().Perm()
+	if mode&^fileMode == 0 {
+		return nil
+	}
+	if err := os.Chmod(path, fileMode); err != nil {
+		return fmt.Errorf("store: open %s: the file is readable by others (mode %04o) and could not be set to 0600: %w", path, mode, err)
+	}
+	if log != nil {
+		log.Warn("the data file was readable by others; set it to owner-only", "path", path, "was", fmt.Sprintf("%04o", mode), "now", "0600")
+	}
+	return nil
 }
 
 // ErrLocked is matched (errors.Is) by the error Open returns when another
@@ -99,6 +126,7 @@ func (e *LockedError) Unwrap() []error { return []error{ErrLocked, e.err} }
 // DB is an open data file. Its methods are safe for concurrent use.
 type DB struct {
 	writers  atomic.Int32 // Batch calls in flight
+	inboxSeq atomic.Uint64 // second half of inbox keys (NewInboxID)
 	bolt     *bolt.DB
 	path     string
 	readOnly bool
@@ -139,6 +167,11 @@ func openWith(path string, opts Options, ms map[uint64]migration, target uint64)
 			return nil, fmt.Errorf("store: open %s: create directory: %w", path, err)
 		}
 	}
+	if !opts.ReadOnly {
+		if err := tightenMode(path, opts.Logger); err != nil {
+			return nil, err
+		}
+	}
 	bdb, err := bolt.Open(path, fileMode, &bolt.Options{Timeout: timeout, ReadOnly: opts.ReadOnly, InitialMmapSize: mmapSize})
 	if errors.Is(err, bolterrors.ErrTimeout) {
 		return nil, &LockedError{Path: path, Waited: timeout, err: err}
@@ -160,6 +193,10 @@ func openWith(path string, opts Options, ms map[uint64]migration, target uint64)
 	if err := db.prepareSchema(ms, target); err != nil {
 		_ = bdb.Close()
 		return nil, err
+	}
+	if err := db.ensureInbox(); err != nil {
+		_ = bdb.Close()
+		return nil, fmt.Errorf("store: open %s: create inbox: %w", path, err)
 	}
 	return db, nil
 }
