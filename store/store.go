@@ -125,7 +125,7 @@ func (e *LockedError) Unwrap() []error { return []error{ErrLocked, e.err} }
 
 // DB is an open data file. Its methods are safe for concurrent use.
 type DB struct {
-	writers  atomic.Int32 // Batch calls in flight
+	writers  atomic.Int32  // Batch calls in flight
 	inboxSeq atomic.Uint64 // second half of inbox keys (NewInboxID)
 	bolt     *bolt.DB
 	path     string
