@@ -320,7 +320,7 @@ func runMargin(c *call) (Reply, error) {
 	if len(res.Contributions) > 0 {
 		add("Largest ±", marginContribution(res.Contributions, imp))
 	}
-	add("Hay's heights", fmt.Sprintf("H1 %s + H2 %s − H3 %s = bar %s", units.Length(h1, imp), units.Length(h2, imp), hayH3(h3, imp), units.Length(m.barM, imp)))
+	add("Hay's heights", haySum(h1, h2, h3, imp))
 	g, err := env.gravityField(res.VzMS)
 	if err != nil {
 		return Reply{}, calcErr(err, ex)
@@ -463,15 +463,6 @@ func marginReadout(res mechanics.MarginResult, barM, dM float64, vxOnly bool, vx
 		parts = append(parts, fmt.Sprintf("At %s the peak comes %s past the take-off: a take-off that far out puts it over the bar.", calcSpeed(vxMS), units.Length(x, imp)))
 	}
 	return strings.Join(parts, " "), false, nil
-}
-
-// hayH3 shows H3, the peak above the bar, in brackets when negative (the
-// peak below the bar), so the sum still reads left to right.
-func hayH3(h3M float64, imp bool) string {
-	if h3M < 0 {
-		return "(" + calcSigned(h3M, imp) + ")"
-	}
-	return units.Length(h3M, imp)
 }
 
 // marginAcrossNote says which speed across the bar was used and where it

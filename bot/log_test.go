@@ -505,7 +505,7 @@ func TestCoachMarginAgainstOutcome(t *testing.T) {
 		marginM float64
 	}{
 		{"log Mira 1.70 x by 2cm", false, true, []string{"1.70 attempt 1 is a miss (x)", "+2.0 cm is positive", "heel or arm", "by -2cm"}, 0.02},
-		{"log Mira 1.70 xo by -1.5cm", false, true, []string{"1.70 attempt 2 is a clearance (o)", "-1.5 cm is negative", "by 1.5cm"}, -0.015},
+		{"log Mira 1.70 xo by -1.5cm", false, true, []string{"1.70 attempt 2 is a clearance (o)", "−1.5 cm is negative", "by 1.5cm"}, -0.015},
 		{"log Mira 5-7 x by 1in", true, true, []string{"5-7 attempt 1 is a miss (x)", "+1.0 in is positive", "by -1in"}, 0.0254},
 		{"log Mira 1.70 o by 3cm", false, false, nil, 0.03},
 		{"log Mira 1.70 x by -2cm", false, false, nil, -0.02},

@@ -18,6 +18,8 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
+
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 // Chart size and line limits.
@@ -377,7 +379,7 @@ func feetInchTicks(lo, hi float64) []plot.Tick {
 	for in := int(math.Ceil(lo)); float64(in) <= hi; in++ {
 		t := plot.Tick{Value: float64(in)}
 		if in%step == 0 {
-			t.Label = fmt.Sprintf("%d'%d\"", in/12, in%12)
+			t.Label = units.FeetInchesQuarter(float64(in) * MetresPerInch)
 		}
 		ts = append(ts, t)
 	}

@@ -2,8 +2,9 @@ package digest
 
 import (
 	"fmt"
-	"math"
 	"strings"
+
+	"github.com/lathmark-team/lathmark/internal/units"
 )
 
 // Redacted returns a copy of d for the team channel: each private athlete's
@@ -108,24 +109,13 @@ func (a AthleteWeek) Lines(imperial bool) []string {
 
 // MetresPerInch is the international inch, 0.0254 m exactly (international
 // yard and pound agreement, 1959).
-const MetresPerInch = 0.0254
+const MetresPerInch = units.MetresPerInch
 
-// FormatBar writes a bar height: "2.01 m", or with imperial feet and inches
-// to the nearest quarter inch, "6'7¼\"".
-func FormatBar(m float64, imperial bool) string {
-	if !imperial {
-		return fmt.Sprintf("%.2f m", m)
-	}
-	q := int(math.Round(m / MetresPerInch * 4)) // quarter inches
-	ft, rest := q/48, q%48
-	in, frac := rest/4, rest%4
-	return fmt.Sprintf("%d'%d%s\"", ft, in, []string{"", "¼", "½", "¾"}[frac])
-}
+// FormatBar writes a bar height as the text replies do: "2.01 m", or in
+// imperial the trade's feet-inches to the quarter inch, "6-7¼"
+// (units.Length).
+func FormatBar(m float64, imperial bool) string { return units.Length(m, imperial) }
 
-// FormatMargin writes a signed clearance margin: "+3.0 cm" or "+1.2 in".
-func FormatMargin(m float64, imperial bool) string {
-	if imperial {
-		return fmt.Sprintf("%+.1f in", m/MetresPerInch)
-	}
-	return fmt.Sprintf("%+.1f cm", m*100)
-}
+// FormatMargin writes a signed clearance margin as the text replies do:
+// "+3.0 cm", "−1.2 in" (units.Small).
+func FormatMargin(m float64, imperial bool) string { return units.Small(m, imperial) }

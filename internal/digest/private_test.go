@@ -43,8 +43,9 @@ func TestPrivateSummaryGolden(t *testing.T) {
 }
 
 // Feet and inches to the nearest quarter inch, 1 in = 0.0254 m exactly
-// (international yard and pound agreement, 1959): 2.00 m = 78.74 in = 6'6¾";
-// 1.83 m = 72.05 in = 6'0"; 2.45 m = 96.46 in = 8'0½".
+// (international yard and pound agreement, 1959): 2.00 m = 78.74 in = 6-6¾;
+// 1.83 m = 72.05 in = 6-0; 2.45 m = 96.46 in = 8-0½ (the trade's feet-inches,
+// as the text replies write them).
 func TestFormatBar(t *testing.T) {
 	tests := []struct {
 		m        float64
@@ -52,16 +53,16 @@ func TestFormatBar(t *testing.T) {
 		want     string
 	}{
 		{2.00, false, "2.00 m"},
-		{2.00, true, "6'6¾\""},
-		{1.83, true, "6'0\""},
-		{2.45, true, "8'0½\""},
+		{2.00, true, "6-6¾"},
+		{1.83, true, "6-0"},
+		{2.45, true, "8-0½"},
 	}
 	for _, tt := range tests {
 		if got := FormatBar(tt.m, tt.imperial); got != tt.want {
 			t.Errorf("FormatBar(%v, %v) = %q, want %q", tt.m, tt.imperial, got, tt.want)
 		}
 	}
-	if got := FormatMargin(-0.03, false); got != "-3.0 cm" {
+	if got := FormatMargin(-0.03, false); got != "−3.0 cm" {
 		t.Errorf("FormatMargin = %q", got)
 	}
 	if got := FormatMargin(0.0254, true); got != "+1.0 in" {

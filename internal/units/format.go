@@ -3,6 +3,7 @@ package units
 import (
 	"fmt"
 	"math"
+	"strings"
 )
 
 // FeetInches splits metres into whole feet and whole inches, rounding to the
@@ -30,13 +31,24 @@ func Bar(m float64, imperial bool) string {
 }
 
 // Small formats a small signed length such as a margin: "+3.0 cm" or
-// "+1.2 in" (tenths, for model outputs with an uncertainty; InchesQuarter
-// writes a length set or measured to the quarter inch).
+// "−1.2 in" (tenths, for model outputs with an uncertainty; InchesQuarter
+// writes a length set or measured to the quarter inch). A negative value
+// leads with the minus sign U+2212, as FeetInchesQuarter does, so every
+// negative length in a reply reads the same; a value that rounds to zero
+// is "+0.0".
 func Small(m float64, imperial bool) string {
+	v, unit := m*100, "cm"
 	if imperial {
-		return fmt.Sprintf("%+.1f in", m/MetresPerInch)
+		v, unit = m/MetresPerInch, "in"
 	}
-	return fmt.Sprintf("%+.1f cm", m*100)
+	s := fmt.Sprintf("%+.1f %s", v, unit)
+	if strings.HasPrefix(s, "-0.0 ") {
+		return "+" + s[1:]
+	}
+	if s[0] == '-' {
+		return Minus + s[1:]
+	}
+	return s
 }
 
 // SmallAbs is Small without a sign: "3.0 cm" or "1.2 in".

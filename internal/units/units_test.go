@@ -114,7 +114,7 @@ func TestFormatRoundTrip(t *testing.T) {
 			t.Errorf("%d in: FeetInches %d-%d, reparsed %v %v", in, ft, inch, back, err)
 		}
 	}
-	if got := Small(-0.02, false); got != "-2.0 cm" {
+	if got := Small(-0.02, false); got != "−2.0 cm" {
 		t.Errorf("Small = %q", got)
 	}
 }
