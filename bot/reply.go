@@ -82,6 +82,10 @@ type Action struct {
 	Label   string
 	Command string
 	Style   string // "", "primary" or "danger"
+	// Expand says the reply to Command replaces the message the button is
+	// on instead of arriving as a new one (Slack: chat.update), as the
+	// Details button under a short reply does.
+	Expand bool
 }
 
 // Direct is a message for one chat user only.

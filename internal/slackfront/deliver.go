@@ -64,6 +64,20 @@ func (f *Front) deliverParts(ctx context.Context, t target, r bot.Reply) (posted
 	var errs []error
 	stop := func() bool { return t.allOrNothing && !posted && len(errs) > 0 }
 
+	if t.replaceTS != "" && len(msgs) > 0 && r.OK() {
+		// Expand the message in place; what does not fit in one message
+		// follows in its thread.
+		if err := f.replaceMessage(ctx, t, msgs[0]); err != nil {
+			f.log.Warn("could not expand the message in place; posting the details as a new message", "err", err)
+		} else {
+			posted, msgs = true, msgs[1:]
+			if t.threadTS == "" {
+				t.threadTS = t.replaceTS
+			}
+		}
+		t.responseURL = ""
+	}
+
 	if t.responseURL != "" && len(msgs) > 0 && len(msgs) <= maxResponseURLPosts {
 		if !f.responseURLAllowed(t.responseURL) {
 			f.log.Warn("ignoring a response_url that is not a Slack host or the API URL", "host", hostOf(t.responseURL))
@@ -162,6 +176,29 @@ func msgOptions(threadTS string, m Message) []slack.MsgOption {
 		opts = append(opts, slack.MsgOptionTS(threadTS))
 	}
 	return opts
+}
+
+// replaceMessage puts m in place of the message t.replaceTS: by chat.update,
+// or, for an ephemeral message (which chat.update cannot reach), through
+// the button's response_url with replace_original.
+func (f *Front) replaceMessage(ctx context.Context, t target, m Message) error {
+	if t.replaceEphemeral {
+		if t.responseURL == "" || !f.responseURLAllowed(t.responseURL) {
+			return errors.New("an ephemeral message without a usable response_url")
+		}
+		return f.call(ctx, "response_url", func(ctx context.Context) error {
+			_, _, err := f.api.PostMessageContext(ctx, "",
+				slack.MsgOptionReplaceOriginal(t.responseURL),
+				slack.MsgOptionBlocks(m.Blocks...),
+				slack.MsgOptionText(m.Text, false))
+			return err
+		})
+	}
+	return f.call(ctx, "chat.update", func(ctx context.Context) error {
+		_, _, _, err := f.api.UpdateMessageContext(ctx, t.channel, t.replaceTS,
+			slack.MsgOptionBlocks(m.Blocks...), slack.MsgOptionText(m.Text, false))
+		return err
+	})
 }
 
 func (f *Front) postMessage(ctx context.Context, channel, threadTS string, m Message) error {

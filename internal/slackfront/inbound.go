@@ -41,6 +41,11 @@ type target struct {
 	// allOrNothing stops a delivery at its first failure while nothing is
 	// posted yet (PostReply: its caller may retry the whole reply).
 	allOrNothing bool
+	// replaceTS, when set, is the message the reply replaces (a Details
+	// button expanding its message): chat.update, or for an ephemeral
+	// message (replaceEphemeral) its response_url with replace_original.
+	replaceTS        string
+	replaceEphemeral bool
 }
 
 // eventKeys are the dedup ids of a message event: its event id and the
@@ -140,7 +145,13 @@ func (f *Front) fromSlash(c slack.SlashCommand, retry int) inbound {
 
 // isOurAction reports whether an action id is one of lathmark's buttons.
 func isOurAction(id string) bool {
-	return id == ActionID || strings.HasPrefix(id, ActionID+":")
+	return id == ActionID || strings.HasPrefix(id, ActionID+":") || isExpandAction(id)
+}
+
+// isExpandAction reports whether an action id is a button whose reply
+// replaces the message it is on.
+func isExpandAction(id string) bool {
+	return id == ExpandActionID || strings.HasPrefix(id, ExpandActionID+":")
 }
 
 // fromAction turns a press of one of lathmark's buttons into work: the
@@ -200,11 +211,18 @@ func (f *Front) fromAction(cb slack.InteractionCallback, retry int) []inbound {
 		if direct {
 			req.Channel, req.Direct = "", true
 		}
+		to := target{channel: channel, threadTS: thread, user: cb.User.ID, direct: direct}
+		kind := "button"
+		if isExpandAction(a.ActionID) && msgTS != "" {
+			kind = "expand"
+			to.replaceTS, to.replaceEphemeral = msgTS, cb.Container.IsEphemeral
+			to.responseURL = cb.ResponseURL
+		}
 		out = append(out, inbound{
-			kind:     "button",
+			kind:     kind,
 			keys:     keys,
 			req:      req,
-			to:       target{channel: channel, threadTS: thread, user: cb.User.ID, direct: direct},
+			to:       to,
 			userName: cb.User.Name,
 			retry:    retry,
 		})
@@ -252,7 +270,7 @@ func (f *Front) process(ctx context.Context, in inbound) {
 	start := time.Now()
 	req := in.req
 	req.UserName = f.displayName(ctx, req.UserID, in.userName)
-	reply := f.cfg.Handler.Handle(ctx, req)
+	reply := WithDetails(f.cfg.Handler.Handle(ctx, req), req.Text)
 	for _, k := range in.keys {
 		if err := f.cfg.Dedup.MarkSeen(ctx, k.id); err != nil {
 			log.Warn("could not record the delivery as handled", "key", k.id, "err", err)

@@ -2,6 +2,7 @@ package slackfront
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 	"unicode/utf8"
 
@@ -15,6 +16,27 @@ import (
 // id equal to ActionID or starting with ActionID + ":" runs the button's
 // value as a command.
 const ActionID = "lathmark_cmd"
+
+// ExpandActionID marks buttons whose command's reply replaces the message
+// they are on (bot.Action.Expand), such as Details; ids are numbered as
+// for ActionID.
+const ExpandActionID = "lathmark_expand"
+
+// detailsLabel is the text of the button under a reply that has details.
+const detailsLabel = "Details"
+
+// WithDetails adds a Details button to a reply that has a full read-out
+// behind it (bot.Reply.Details): pressing it runs the same command line
+// with "more" at the end and expands the message in place. text is the
+// command line as the asker typed it.
+func WithDetails(r bot.Reply, text string) bot.Reply {
+	text = strings.TrimSpace(text)
+	if r.Details == nil || text == "" {
+		return r
+	}
+	r.Actions = append(slices.Clone(r.Actions), bot.Action{Label: detailsLabel, Command: text + " more", Expand: true})
+	return r
+}
 
 // Block Kit limits for messages, from Slack's Block Kit reference
 // (docs.slack.dev/reference/block-kit: blocks, block elements, composition
@@ -153,6 +175,9 @@ func Render(r bot.Reply) ([]slack.Block, string) {
 	}
 	for i, a := range r.Actions {
 		id := fmt.Sprintf("%s:%d", ActionID, i)
+		if a.Expand {
+			id = fmt.Sprintf("%s:%d", ExpandActionID, i)
+		}
 		label := strings.TrimSpace(a.Label)
 		if label == "" {
 			label = a.Command
