@@ -93,14 +93,14 @@ func runCrossing(c *call) (Reply, error) {
 		h0 = mechanics.TakeoffHeightFraction * b.statureM
 		assumed = append(assumed, fmt.Sprintf("h0 %s (0.70 × height)", units.Length(h0, env.imp)))
 	}
-	vx, ok := o.num("across")
-	if !ok {
+	vx, acrossTyped := o.num("across")
+	if !acrossTyped {
 		if sp, hasSp := o.num("speed"); hasSp {
 			a, hasA := o.num("angle")
 			if !hasA {
 				return Reply{}, usageErr(ex+" speed 4.0 angle 35", "speed needs the angle to the bar too (angle 35), or give across VX")
 			}
-			vx = sp * math.Sin(a*math.Pi/180)
+			vx, acrossTyped = sp*math.Sin(a*math.Pi/180), true
 		} else {
 			vx = env.gMS2 * d / vz
 			assumed = append(assumed, fmt.Sprintf("speed across the bar %s = g·D/vz (peak over the bar)", calcSpeed(vx)))
@@ -120,6 +120,7 @@ func runCrossing(c *call) (Reply, error) {
 		return Reply{}, calcErr(err, ex)
 	}
 	lines := crossingLines(r, env.imp)
+	lines = append(lines, crossingFlags(in, acrossTyped)...)
 	if r.Touches {
 		lines = append(lines, crossingAdvice(in, r))
 	}

@@ -69,3 +69,27 @@ func crossingPrediction(a record.Attempt, ath record.Athlete, gMS2 float64) (Cro
 	low := r.Lowest()
 	return CrossingPrediction{Part: low.Part, ClearanceM: low.ClearanceM, Touches: low.Touches, H0Assumed: true}, true, nil
 }
+
+// withPrediction stores the crossing model's forecast in a logged attempt
+// that carries the measurements it needs, beside the coach's observation
+// (Knock), so that the two can be compared over a season. An attempt
+// without the measurements, or whose numbers the model cannot use (a peak
+// below the assumed take-off height), is returned unchanged: the log line
+// stands on what the coach typed.
+func withPrediction(a record.Attempt, ath record.Athlete, team record.Team) record.Attempt {
+	if a.Outcome == record.Passed {
+		return a
+	}
+	var g float64
+	if team.HasLocation {
+		if v, err := mechanics.NormalGravity(team.LatDeg, team.AltM); err == nil {
+			g = v
+		}
+	}
+	p, ok, err := crossingPrediction(a, ath, g)
+	if err != nil || !ok {
+		return a
+	}
+	a.HasPrediction, a.PredictedPart, a.PredictedClearanceM = true, string(p.Part), p.ClearanceM
+	return a
+}

@@ -286,6 +286,11 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 	if len(ceilings) > 0 {
 		r.Notes = append(r.Notes, fmt.Sprintf("Ceiling (highest bar made on at least half its tries, %d weeks): %s.", len(d.TrendWeeks), strings.Join(ceilings, ", ")))
 	}
+	if kn, err := knockNote(tx, shown, loc, full); err != nil {
+		return r, err
+	} else if kn != "" {
+		r.Notes = append(r.Notes, kn)
+	}
 	if len(d.Idle) > 0 {
 		r.Notes = append(r.Notes, "No jumps this week: "+strings.Join(d.Idle, ", ")+".")
 	}

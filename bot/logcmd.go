@@ -147,6 +147,7 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 	numberAttempts(sameKind, add, ln.Meet)
 	jumps := make([]loggedJump, len(add))
 	for i := range add {
+		add[i] = withPrediction(add[i], ath, team)
 		m := modelMargin(add[i], ath, team)
 		if m.ok {
 			add[i].HasModelMargin, add[i].ModelMarginM = true, m.marginM
@@ -246,6 +247,9 @@ func logReply(ath record.Athlete, ln logLine, jumps []loggedJump, today, sameKin
 		}
 		if j.model.ok {
 			parts = append(parts, "model margin "+units.Small(j.model.marginM, imp)+" ± "+units.SmallAbs(j.model.sigmaM, imp))
+		}
+		if a.HasPrediction {
+			parts = append(parts, a.PredictedPart+" lowest "+units.Small(a.PredictedClearanceM, imp))
 		}
 		r.Fields = append(r.Fields, Field{Label: label, Value: strings.Join(parts, ", ")})
 		if j.model.why != "" && !seen[j.model.why] {

@@ -682,6 +682,7 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 				a.LoggedBy = c.lineOwner()
 			}
 			a.LineID = lineID
+			a = withPrediction(a, athletes[a.AthleteID], team)
 			if !row.model {
 				if m := modelMargin(a, athletes[a.AthleteID], team); m.ok {
 					a.HasModelMargin, a.ModelMarginM = true, m.marginM

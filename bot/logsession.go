@@ -118,7 +118,11 @@ func knocksText(as []record.Attempt, imp bool) string {
 	var parts []string
 	for _, a := range as {
 		if a.Outcome == record.Failed && a.Knock != "" {
-			parts = append(parts, units.Bar(a.BarM, imp)+" "+a.Knock)
+			p := units.Bar(a.BarM, imp) + " " + a.Knock
+			if a.HasPrediction {
+				p += " (model: " + a.PredictedPart + " " + units.Small(a.PredictedClearanceM, imp) + ")"
+			}
+			parts = append(parts, p)
 		}
 	}
 	return strings.Join(parts, ", ")

@@ -122,6 +122,15 @@ type Attempt struct {
 	// line broke (stored after `confirm`); such an attempt never counts
 	// for a best.
 	RuleBreach string `json:"breach,omitempty"`
+
+	// The crossing model's forecast for this attempt, stored beside the
+	// coach's observation (Knock) when the line carried the measurements
+	// the model needs (take-off distance and vz or a measured peak):
+	// PredictedPart is the part it put lowest over the bar, and
+	// PredictedClearanceM that part's clearance (negative: a touch).
+	HasPrediction       bool    `json:"has_pred,omitempty"`
+	PredictedPart       string  `json:"pred_part,omitempty"`
+	PredictedClearanceM float64 `json:"pred_m,omitempty"`
 }
 
 // Key identifies an attempt in the store: athlete, time, sequence.
