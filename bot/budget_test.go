@@ -60,6 +60,7 @@ var budgetByGolden = []struct {
 	{"digest", "digest", listBudget},
 	{"chart", "chart", confirmBudget},
 	{"hint", "log (hint)", confirmBudget},
+	{"block", "a pasted block of lines", listBudget},
 }
 
 // TestReplyBudget renders (reads) every golden reply and fails when a

@@ -69,6 +69,9 @@ func (e *Engine) Handle(ctx context.Context, req Request) (reply Reply) {
 			reply = internalReply()
 		}
 	}()
+	if isBlock(req.Text) {
+		return e.handleBlock(ctx, req)
+	}
 	ts := tokenize(req.Text)
 	if len(ts) == 0 {
 		return Reply{Title: "lathmark", Lines: []string{"Type `help` to see what I can do."}, Example: "help", Ephemeral: true}

@@ -11,7 +11,7 @@ import (
 // cleanText turns a Slack message text into a command line: mentions of
 // the bot itself (<@UBOT> or <@UBOT|name>) are removed wherever they stand,
 // with the colon or comma people put after a leading one ("@lathmark: help"),
-// Slack's three entities (&amp; &lt; &gt;) are decoded, and the result is
+// Slack's three entities (&amp; &lt; &gt;) are decoded, and each line is
 // trimmed. Other mentions stay: the engine resolves <@U123> to a person.
 func cleanText(text, botUserID string) string {
 	if botUserID != "" {
@@ -43,7 +43,15 @@ func cleanText(text, botUserID string) string {
 		text = b.String()
 	}
 	text = strings.NewReplacer("&lt;", "<", "&gt;", ">", "&amp;", "&").Replace(text)
-	return strings.Join(strings.Fields(text), " ")
+	// Line breaks stay (a pasted block is one command a line, see
+	// bot/block.go); blank lines go, and runs of spaces in a line become one.
+	var lines []string
+	for _, l := range strings.Split(text, "\n") {
+		if l = strings.Join(strings.Fields(l), " "); l != "" {
+			lines = append(lines, l)
+		}
+	}
+	return strings.Join(lines, "\n")
 }
 
 // trimAddressMark removes the colon or comma that follows a leading

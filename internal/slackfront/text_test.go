@@ -23,6 +23,7 @@ func TestCleanText(t *testing.T) {
 		{"<@UBOT>:help", "help"},
 		{"<@UBOT> :x: not a colon after the mention", ":x: not a colon after the mention"},
 		{"<@UBOT", "<@UBOT"},
+		{"<@UBOT>\nlog Kai 1.95 o\n\n  log Mira   1.80 xo \r\n", "log Kai 1.95 o\nlog Mira 1.80 xo"}, // a pasted block keeps its lines
 		{"", ""},
 	}
 	for _, tt := range tests {
