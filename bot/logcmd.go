@@ -54,7 +54,7 @@ func logCommands() []command {
 			summary: "a CSV file of attempts, one row each (all athletes for coaches)", run: runExportCSV},
 		{name: "import csv", aliases: []string{"csv import"}, topic: "log", access: headOnly,
 			usage: "import csv PATH", example: "import csv /home/coach/attempts.csv",
-			summary: "read attempts from a CSV file on the bot's computer: all rows or none; rows whose message id was already handled are skipped", run: runImportCSV},
+			summary: "read attempts from a CSV file on the bot's computer, or sent to the bot in chat (up to 2 MiB): all rows or none; rows whose message id was already handled are skipped", run: runImportCSV},
 	}
 }
 

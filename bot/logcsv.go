@@ -442,11 +442,14 @@ func refuseRows(problems []string, extra ...string) *importRefusal {
 }
 
 func runImportCSV(c *call) (Reply, error) {
+	if len(c.args) == 0 && c.req.Upload != nil {
+		return c.importUpload()
+	}
 	if len(c.args) == 0 {
 		return Reply{}, usageErr("import csv /home/coach/attempts.csv", "give the path of a CSV file on the bot's computer")
 	}
 	if !c.req.Local {
-		return Reply{}, forbiddenErr("export csv", "import csv reads a file on the bot's own computer, so it works only in the bot's terminal (lathmark run there); from chat, send the file to the person who runs the bot")
+		return Reply{}, forbiddenErr("export csv", "import csv reads a file on the bot's own computer, so it works only in the bot's terminal (lathmark run there); from chat, send the CSV file itself to the bot in a direct message, or with the words import csv")
 	}
 	path := strings.Trim(joinRaw(c.args), `"'`)
 	return c.importCSVFile(path, nil)

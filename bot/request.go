@@ -14,4 +14,18 @@ type Request struct {
 	// Local is set by the terminal front end: the speaker sits at the bot's
 	// own computer, so commands that read its files (import csv) may run.
 	Local bool
+	// Upload is the file shared with the message, as the front end
+	// fetched it (Slack: a CSV sent to the bot for `import csv`); nil when
+	// none. A pointer, so that a Request stays comparable.
+	Upload *Upload
+}
+
+// Upload is one file shared with a message. Data is nil when the front end
+// did not fetch it; Problem then says why, in words for the person who
+// sent it ("is 3.1 MiB; files from chat may be up to 2 MiB").
+type Upload struct {
+	Name    string
+	MIME    string
+	Data    []byte
+	Problem string
 }

@@ -154,13 +154,14 @@ type fakeSlack struct {
 	authHang    bool              // auth.test never answers
 	delay       time.Duration     // every recorded method waits this long
 	userNames   map[string]string // users.info display names
+	files       map[string][]byte // files served under /files-pri/NAME (bearer token required)
 	connections int
 	ws          *wsFake
 }
 
 func newFakeSlack(t testing.TB) *fakeSlack {
 	t.Helper()
-	fs := &fakeSlack{limited: map[string]int{}, retryAfter: "0", userNames: map[string]string{}}
+	fs := &fakeSlack{limited: map[string]int{}, retryAfter: "0", userNames: map[string]string{}, files: map[string][]byte{}}
 	fs.ws = newWSFake(t)
 	fs.srv = slacktest.NewTestServer(func(c slacktest.Customize) {
 		c.Handle("/auth.test", fs.authTest)
@@ -192,6 +193,11 @@ func newFakeSlack(t testing.TB) *fakeSlack {
 		}))
 		c.Handle("/hooks/", fs.record("response_url", func(w http.ResponseWriter, _ url.Values) {
 			writeJSON(w, map[string]any{"ok": true})
+		}))
+		c.Handle("/files-pri/", fs.serveFile)
+		c.Handle("/files.info", fs.record("files.info", func(w http.ResponseWriter, form url.Values) {
+			id := form.Get("file")
+			writeJSON(w, map[string]any{"ok": true, "file": map[string]any{"id": id, "name": id + ".csv", "url_private_download": fs.url() + "files-pri/" + id}})
 		}))
 		c.Handle("/apps.connections.open", fs.appsOpen)
 		c.Handle("/ws", fs.ws.handle)
@@ -240,6 +246,23 @@ func (fs *fakeSlack) appsOpen(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	writeJSON(w, map[string]any{"ok": true, "url": fs.srv.GetWSURL()})
+}
+
+// serveFile answers a file download as files.slack.com would: the
+// file's bytes to a request with the bot token, 403 otherwise. Each
+// download is recorded as the method "file download".
+func (fs *fakeSlack) serveFile(w http.ResponseWriter, r *http.Request) {
+	name := strings.TrimPrefix(r.URL.Path, "/files-pri/")
+	fs.mu.Lock()
+	fs.calls = append(fs.calls, apiCall{Method: "file download", Form: url.Values{"name": {name}}, Header: r.Header.Clone()})
+	data, ok := fs.files[name]
+	fs.mu.Unlock()
+	if r.Header.Get("Authorization") != "Bearer "+testBotToken || !ok {
+		http.Error(w, "no such file for this token", http.StatusForbidden)
+		return
+	}
+	w.Header().Set("Content-Type", "text/csv")
+	_, _ = w.Write(data)
 }
 
 // record stores the call, answers 429 while the method is still to be

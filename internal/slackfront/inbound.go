@@ -19,8 +19,9 @@ type inbound struct {
 	keys     []dedupKey // checked in order; the first one seen decides
 	req      bot.Request
 	to       target
-	userName string // the name Slack sent along, if any, used when users.info fails
-	retry    int    // Slack's retry count (X-Slack-Retry-Num or retry_attempt)
+	userName string       // the name Slack sent along, if any, used when users.info fails
+	retry    int          // Slack's retry count (X-Slack-Retry-Num or retry_attempt)
+	files    []sharedFile // files shared with the message (files.go)
 }
 
 // dedupKey is one id under which a delivery is remembered. notice, when
@@ -79,13 +80,21 @@ func (f *Front) fromEvent(ev slackevents.EventsAPIEvent, retry int) (inbound, bo
 		if !in.to.direct && in.to.threadTS == "" {
 			in.to.threadTS = e.TimeStamp // answer a channel mention in a thread
 		}
+		in.files = sharedFiles(e.Files)
 		return in, true
 	case *slackevents.MessageEvent:
-		if e.ChannelType != "im" || e.SubType != "" || e.BotID != "" || e.User == "" ||
+		if e.ChannelType != "im" || (e.SubType != "" && e.SubType != "file_share") || e.BotID != "" || e.User == "" ||
 			e.User == f.self.UserID || e.TimeStamp == "" {
 			return inbound{}, false
 		}
-		return f.messageInbound("dm", e.Channel, e.User, e.Text, e.TimeStamp, e.ThreadTimeStamp, eventID, retry), true
+		in := f.messageInbound("dm", e.Channel, e.User, e.Text, e.TimeStamp, e.ThreadTimeStamp, eventID, retry)
+		if e.Message != nil && len(e.Message.Files) > 0 {
+			in.files = sharedFiles(e.Message.Files)
+			if in.to.threadTS == "" {
+				in.to.threadTS = e.TimeStamp // answer a shared file in its thread
+			}
+		}
+		return in, true
 	}
 	return inbound{}, false
 }
@@ -270,6 +279,7 @@ func (f *Front) process(ctx context.Context, in inbound) {
 	start := time.Now()
 	req := in.req
 	req.UserName = f.displayName(ctx, req.UserID, in.userName)
+	req = f.withFiles(ctx, in, req)
 	reply := WithDetails(f.cfg.Handler.Handle(ctx, req), req.Text)
 	for _, k := range in.keys {
 		if err := f.cfg.Dedup.MarkSeen(ctx, k.id); err != nil {

@@ -49,6 +49,7 @@ func TestManifestMatchesFrontEnd(t *testing.T) {
 		"im:write":          "conversations.open for Reply.Direct",
 		"users:read":        "users.info for display names",
 		"files:write":       "files.getUploadURLExternal / completeUploadExternal",
+		"files:read":        "downloading a CSV shared for import csv (url_private_download, files.info)",
 		"channels:read":     "channel details for replies and uploads",
 	}
 	scopes := listUnder(lines, "bot")
