@@ -443,6 +443,9 @@ func runAthleteSet(c *call) (Reply, error) {
 	}
 	r := profileReply(after, team, nil)
 	r.Title = "Updated " + after.Name
+	if isMinor(after, c.now.Year()) {
+		r.Caution = minorCaution // the same reminder as athlete add
+	}
 	return r, nil
 }
 

@@ -36,8 +36,8 @@ func (c *call) loadSpeaker() error {
 			return err
 		}
 		c.user = u
-		if c.user.Name == "" {
-			c.user.Name = c.req.UserName
+		if c.req.UserName != "" {
+			c.user.Name = c.req.UserName // the chat's current display name
 		}
 		return nil
 	})
@@ -173,6 +173,16 @@ func (c *call) once(fn func(Tx) error) func(Tx) error {
 // audit appends who changed what, with the record before and after as JSON.
 // before or after may be nil.
 func (c *call) audit(tx Tx, action, subject string, before, after any) error {
+	id, err := auditAthlete(tx, subject, before, after)
+	if err != nil {
+		return fmt.Errorf("audit %s: %w", action, err)
+	}
+	return c.auditFor(tx, id, action, subject, before, after)
+}
+
+// auditFor is audit for a change to a known athlete (0: none), for a
+// change after which the athlete can no longer be looked up.
+func (c *call) auditFor(tx Tx, athleteID uint64, action, subject string, before, after any) error {
 	enc := func(v any) (string, error) {
 		if v == nil {
 			return "", nil
@@ -192,7 +202,7 @@ func (c *call) audit(tx Tx, action, subject string, before, after any) error {
 	if c.user.Name != "" {
 		actor = c.user.Name + " (" + c.user.ID + ")"
 	}
-	return tx.Audit(record.AuditEntry{Time: c.now, Actor: actor, Action: action, Subject: subject, Before: b, After: a})
+	return tx.Audit(record.AuditEntry{Time: c.now, Actor: actor, Action: action, Subject: subject, AthleteID: athleteID, Before: b, After: a})
 }
 
 // findAthlete resolves a name typed by the speaker: "me" is the speaker's

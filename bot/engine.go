@@ -23,6 +23,9 @@ type Config struct {
 	// OnTeamChange, if set, is called after a command changed the team
 	// settings (digest schedule, time zone), so the scheduler can follow.
 	OnTeamChange func(record.Team)
+	// Directory lists the workspace's people for `role ROLE NAME`; nil
+	// (the terminal) resolves names among the known users.
+	Directory Directory
 }
 
 // Engine parses and runs commands. It is safe for concurrent use: all state
@@ -33,6 +36,7 @@ type Engine struct {
 	headCoaches []string
 	log         *slog.Logger
 	onTeam      func(record.Team)
+	directory   Directory
 	commands    []command
 	names       []commandName
 	firstWords  []string
@@ -43,7 +47,7 @@ func New(cfg Config) (*Engine, error) {
 	if cfg.Store == nil {
 		return nil, errors.New("bot: no store")
 	}
-	e := &Engine{store: cfg.Store, clock: cfg.Clock, headCoaches: slices.Clone(cfg.HeadCoaches), log: cfg.Logger, onTeam: cfg.OnTeamChange}
+	e := &Engine{store: cfg.Store, clock: cfg.Clock, headCoaches: slices.Clone(cfg.HeadCoaches), log: cfg.Logger, onTeam: cfg.OnTeamChange, directory: cfg.Directory}
 	if e.clock == nil {
 		e.clock = ClockFunc(time.Now)
 	}

@@ -13,7 +13,7 @@ import (
 func roleCommands() []command {
 	return []command{
 		{name: "role", topic: "roles", access: headOnly,
-			usage: "role head|coach|athlete|none @user", example: "role coach @sam",
+			usage: "role head|coach|athlete|none @user|NAME", example: "role coach @sam",
 			summary: "grant or withdraw a role (head coaches only)", run: runRole},
 		{name: "roles", topic: "roles", access: coachOnly,
 			usage: "roles", example: "roles", summary: "who holds which role", run: runRoles},
@@ -72,15 +72,16 @@ func runRole(c *call) (Reply, error) {
 	if !ok {
 		return Reply{}, usageErr(ex, "%q is not a role; roles are head, coach, athlete and none", c.args[0].Raw)
 	}
-	uid := c.userRef(who)
-	if uid == "" || strings.ContainsAny(uid, " <>") {
-		return Reply{}, usageErr(ex, "I can't tell who %q is; use an @mention", who)
+	m, err := c.resolveMember(who, ex)
+	if err != nil {
+		return Reply{}, err
 	}
+	uid := m.ID
 	if slices.Contains(c.e.headCoaches, uid) && role != record.RoleHeadCoach {
 		return Reply{}, conflictErr(ex, "%s is a head coach by the bot's configuration (LATHMARK_HEAD_COACH); change it there", uid)
 	}
 	var u record.User
-	err := c.update(func(tx Tx) error {
+	err = c.update(func(tx Tx) error {
 		cur, ok, err := tx.User(uid)
 		if err != nil {
 			return err
@@ -95,7 +96,7 @@ func runRole(c *call) (Reply, error) {
 				return conflictErr("role head @someone", "%s is the last head coach; make someone else head coach first", uid)
 			}
 		}
-		u = cur
+		u = userOf(cur, m)
 		u.Role = role
 		if err := tx.PutUser(u); err != nil {
 			return err
@@ -106,9 +107,9 @@ func runRole(c *call) (Reply, error) {
 		return Reply{}, err
 	}
 	if role == record.RoleNone {
-		return Reply{Title: "Role withdrawn", Lines: []string{uid + " may now use the calculations only."}}, nil
+		return Reply{Title: "Role withdrawn", Lines: []string{memberLabel(m) + " may now use the calculations only."}}, nil
 	}
-	return Reply{Title: "Role granted", Lines: []string{fmt.Sprintf("%s is now %s.", uid, withArticle(roleName(role)))}}, nil
+	return Reply{Title: "Role granted", Lines: []string{fmt.Sprintf("%s is now %s.", memberLabel(m), withArticle(roleName(role)))}}, nil
 }
 
 // joinHeadCoach reads the two words "head coach" (in either place of the
@@ -215,19 +216,19 @@ func runAudit(c *call) (Reply, error) {
 	since := c.now.AddDate(0, 0, -days)
 	var entries []record.AuditEntry
 	err := c.view(func(tx Tx) error {
-		if subject != "" {
-			a, err := c.findAthlete(tx, subject)
-			if err != nil {
-				return err
-			}
-			subject = a.Name
-		}
-		return tx.AuditEntries(since, func(e record.AuditEntry) error {
-			if subject == "" || strings.EqualFold(e.Subject, subject) {
+		if subject == "" {
+			return tx.AuditEntries(since, func(e record.AuditEntry) error {
 				entries = append(entries, e)
-			}
-			return nil
-		})
+				return nil
+			})
+		}
+		a, err := c.findAthlete(tx, subject)
+		if err != nil {
+			return err
+		}
+		subject = a.Name
+		entries, err = auditOf(tx, a, since)
+		return err
 	})
 	if err != nil {
 		return Reply{}, err
@@ -240,13 +241,13 @@ func runAudit(c *call) (Reply, error) {
 		return Reply{Title: title, Lines: []string{"No changes recorded."}, Ephemeral: true}, nil
 	}
 	const maxShown = 40
-	r := Reply{Title: title, Ephemeral: true, Table: &Table{Header: []string{"when (UTC)", "who", "what", "subject"}}}
+	r := Reply{Title: title, Ephemeral: true, Table: &Table{Header: []string{"when (UTC)", "who", "what", "subject", "change"}}}
 	start := max(0, len(entries)-maxShown)
 	if start > 0 {
 		r.Lines = append(r.Lines, fmt.Sprintf("%d changes; the newest %d are shown.", len(entries), maxShown))
 	}
 	for _, e := range entries[start:] {
-		r.Table.Rows = append(r.Table.Rows, []string{e.Time.UTC().Format("2006-01-02 15:04"), e.Actor, e.Action, e.Subject})
+		r.Table.Rows = append(r.Table.Rows, []string{e.Time.UTC().Format("2006-01-02 15:04"), e.Actor, e.Action, e.Subject, clip(auditChange(e), 60)})
 	}
 	return r, nil
 }
@@ -290,28 +291,16 @@ func runForget(c *call) (Reply, error) {
 		return Reply{}, usageErr("forget "+name+" confirm", "forget deletes everything about an athlete after exporting it; add the word confirm")
 	}
 	var (
-		exp     forgetExport
-		removed int
+		exp forgetExport
+		n   forgotten
 	)
 	err := c.update(func(tx Tx) error {
 		a, err := c.findAthlete(tx, c.args[0].Raw)
 		if err != nil {
 			return err
 		}
-		exp = forgetExport{Exported: c.now.UTC(), Athlete: a}
-		if err := tx.Attempts(a.ID, time.Unix(0, 0), farFuture(), func(at record.Attempt) error {
-			exp.Attempts = append(exp.Attempts, at)
-			return nil
-		}); err != nil {
-			return err
-		}
-		if exp.Users, err = linkedUsers(tx, a.ID); err != nil {
-			return err
-		}
-		if removed, err = tx.DeleteAthlete(a.ID); err != nil {
-			return err
-		}
-		return c.audit(tx, "forget", a.Name, map[string]any{"attempts": len(exp.Attempts), "links": len(exp.Users)}, nil)
+		exp, n, err = c.forgetInTx(tx, a)
+		return err
 	})
 	if err != nil {
 		return Reply{}, err
@@ -323,9 +312,9 @@ func runForget(c *call) (Reply, error) {
 	name := exp.Athlete.Name
 	return Reply{
 		Title:     "Forgot " + name,
-		Lines:     []string{fmt.Sprintf("%s deleted: the profile, %s and %s. The export below is the only copy the bot keeps; hand it to the athlete or their guardian and keep it safe.", plural(removed, "record"), plural(len(exp.Attempts), "jump"), plural(len(exp.Users), "chat link"))},
+		Lines:     []string{n.sentence(), "The export below is the only copy the bot keeps; hand it to the athlete or their guardian and keep it safe."},
 		Ephemeral: true,
 		Files:     []File{{Name: "lathmark-forget-" + strings.ToLower(name) + ".json", MIME: "application/json", Title: "Data of " + name, Data: data}},
-		Caution:   "Backups made before today still hold this athlete's data; delete or let them expire as your data policy says.",
+		Caution:   "Backups made before today still hold this athlete's data, and the audit trail keeps who changed what; delete or let backups expire as your data policy says.",
 	}, nil
 }

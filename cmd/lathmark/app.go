@@ -31,6 +31,22 @@ type app struct {
 	// onTeam is called when a command changes the team settings; the Slack
 	// mode points it at the scheduler.
 	onTeam atomic.Pointer[func(record.Team)]
+	// dir is the workspace directory once the Slack front end is built
+	// (the engine is built first); empty in the terminal.
+	dir lateDirectory
+}
+
+// lateDirectory is the engine's bot.Directory, pointed at the Slack front
+// end's once that exists; before (and in the terminal) there is no
+// workspace, and names resolve among the known users.
+type lateDirectory struct{ p atomic.Pointer[bot.Directory] }
+
+// Members asks the front end's directory, if there is one.
+func (d *lateDirectory) Members(ctx context.Context) ([]bot.Member, bool, error) {
+	if p := d.p.Load(); p != nil {
+		return (*p).Members(ctx)
+	}
+	return nil, false, nil
 }
 
 // newApp opens the data file (or the re-seeded demo file) and builds the engine.
@@ -57,7 +73,7 @@ func newApp(ctx context.Context, cfg config, io stdio) (*app, error) {
 	if !cfg.slack() || cfg.As != "" {
 		heads = append(heads, operatorID)
 	}
-	a.engine, err = bot.New(bot.Config{Store: botstore.New(db), HeadCoaches: heads, Logger: a.log, OnTeamChange: a.teamChanged})
+	a.engine, err = bot.New(bot.Config{Store: botstore.New(db), HeadCoaches: heads, Logger: a.log, OnTeamChange: a.teamChanged, Directory: &a.dir})
 	if err != nil {
 		db.Close()
 		return nil, err

@@ -27,6 +27,9 @@ func (a *app) runSlack(ctx context.Context) error {
 	if err != nil {
 		return err
 	}
+	dir := front.Directory()
+	a.dir.p.Store(&dir)
+	defer a.dir.p.Store(nil)
 	team, err := a.engine.Team(ctx)
 	if err != nil {
 		return err

@@ -236,9 +236,12 @@ type AuditEntry struct {
 	Time    time.Time `json:"time"`
 	Actor   string    `json:"actor"`
 	Action  string    `json:"action"`
-	Subject string    `json:"subject,omitempty"` // athlete name or setting
-	Before  string    `json:"before,omitempty"`
-	After   string    `json:"after,omitempty"`
+	Subject string    `json:"subject,omitempty"` // athlete name (at the time) or setting
+	// AthleteID is the athlete the change concerns (0: none, or an entry
+	// written before entries carried it); a rename keeps the trail.
+	AthleteID uint64 `json:"athlete,omitempty"`
+	Before    string `json:"before,omitempty"`
+	After     string `json:"after,omitempty"`
 }
 
 // ErrStop, returned from an iteration callback, ends the iteration early;

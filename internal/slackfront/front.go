@@ -24,6 +24,7 @@ type Front struct {
 	api    *slack.Client
 	apiURL *url.URL
 	users  Users
+	dir    *memberDirectory
 	gate   rateGate
 	busy   inflight
 	// transport is ours to close when Run returns (nil when the caller gave
@@ -74,6 +75,7 @@ func New(cfg Config) (*Front, error) {
 		opts = append(opts, slack.OptionAppLevelToken(cfg.AppToken))
 	}
 	f.api = slack.New(cfg.BotToken, opts...)
+	f.dir = &memberDirectory{f: f, ttl: cfg.UserTTL, clock: cfg.Clock}
 	f.users = cfg.Users
 	if f.users == nil {
 		f.users = newUserCache(f, cfg.UserTTL, cfg.Clock)
