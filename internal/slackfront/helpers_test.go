@@ -155,6 +155,7 @@ type fakeSlack struct {
 	delay       time.Duration     // every recorded method waits this long
 	userNames   map[string]string // users.info display names
 	files       map[string][]byte // files served under /files-pri/NAME (bearer token required)
+	members     []map[string]any  // users.list members
 	connections int
 	ws          *wsFake
 }
@@ -195,6 +196,12 @@ func newFakeSlack(t testing.TB) *fakeSlack {
 			writeJSON(w, map[string]any{"ok": true})
 		}))
 		c.Handle("/files-pri/", fs.serveFile)
+		c.Handle("/users.list", fs.record("users.list", func(w http.ResponseWriter, _ url.Values) {
+			fs.mu.Lock()
+			ms := fs.members
+			fs.mu.Unlock()
+			writeJSON(w, map[string]any{"ok": true, "members": ms, "response_metadata": map[string]any{"next_cursor": ""}})
+		}))
 		c.Handle("/files.info", fs.record("files.info", func(w http.ResponseWriter, form url.Values) {
 			id := form.Get("file")
 			writeJSON(w, map[string]any{"ok": true, "file": map[string]any{"id": id, "name": id + ".csv", "url_private_download": fs.url() + "files-pri/" + id}})
