@@ -543,21 +543,16 @@ func runAthleteLink(c *call) (Reply, error) {
 		// "athlete link @mira Mira" or "athlete link me Kai": the same link.
 		name, who = who, name
 	}
-	uid := who
-	switch {
-	case strings.EqualFold(who, "me"):
-		uid = c.user.ID
-	case isMention(who):
-		uid = mentionID(who)
+	m, err := c.resolveMember(who, ex) // the same person as `role athlete NAME`
+	if err != nil {
+		return Reply{}, err
 	}
-	if uid == "" {
-		return Reply{}, usageErr(ex, "I can't tell who %q is; use me or an @mention", who)
-	}
+	uid := m.ID
 	var (
 		a        record.Athlete
 		replaced string // the athlete this chat user was linked to before
 	)
-	err := c.update(func(tx Tx) error {
+	err = c.update(func(tx Tx) error {
 		var err error
 		if a, err = c.findAthlete(tx, name); err != nil {
 			return err

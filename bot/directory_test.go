@@ -113,3 +113,16 @@ func TestRoleByNameWorkspace(t *testing.T) {
 		t.Error("a refused role change changed the store")
 	}
 }
+
+// TestLinkByNameSameUserAsRole: `athlete link Lea lea` links the user
+// that `role athlete @lea` made, not a second one.
+func TestLinkByNameSameUserAsRole(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Lea height 1.72")
+	te.must("role athlete @lea")
+	te.must("athlete link Lea lea")
+	as := usersWithRole(t, te.DB, record.RoleAthlete)
+	if len(as) != 1 || as[0].ID != "lea" || as[0].AthleteID == 0 {
+		t.Fatalf("athlete users %+v, want the one user lea, linked", as)
+	}
+}

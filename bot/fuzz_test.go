@@ -21,6 +21,7 @@ func FuzzHandle(f *testing.F) {
 		"com arch 90 height 1.80", "digest now", "team units imperial", "team tz Europe/Madrid", "role coach <@U1>",
 		"athlete add X height 5'10\"", "log Mira 3.20 o", "log Mira 1.70 ox", "margin", "margin 1.80 v 430",
 		"athlete set Mira pb=1.83", "export csv Mira since 2026-01-01", "audit 30d", "\x00\xff", "   ", "log Mira 1.70 o note",
+		"log Mira 1.70 o\nlog Mira 1.7 q\n\nhistory Mira", "role coach sam", "audit Mira 30d",
 	} {
 		f.Add(seed)
 	}
