@@ -443,7 +443,7 @@ func runAthleteSet(c *call) (Reply, error) {
 	}
 	r := profileReply(after, team, nil)
 	r.Title = "Updated " + after.Name
-	if isMinor(after, c.now.Year()) {
+	if isMinor(after, c.now.Year()) && setsBorn(c.args) {
 		r.Caution = minorCaution // the same reminder as athlete add
 	}
 	return r, nil

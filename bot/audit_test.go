@@ -108,6 +108,9 @@ func TestAthleteSetBornMinorCaution(t *testing.T) {
 	if add.Caution == "" || set.Caution != add.Caution {
 		t.Errorf("set caution %q, add caution %q", set.Caution, add.Caution)
 	}
+	if again := te.must("athlete set Una group juniors"); again.Caution != "" {
+		t.Errorf("an edit that does not set born repeats the reminder: %q", again.Caution)
+	}
 	if adult := te.must("athlete set Una born 1990"); adult.Caution != "" {
 		t.Errorf("an adult got the minor caution: %q", adult.Caution)
 	}
