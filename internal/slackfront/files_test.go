@@ -125,3 +125,28 @@ func TestSlackCSVFromDirectMessage(t *testing.T) {
 		t.Errorf("a refused import stored rows: %d attempts", n)
 	}
 }
+
+// TestSlackCSVCutAtBound: a file whose size the event does not give is
+// cut off at the 2 MiB bound while downloading and refused before parsing.
+func TestSlackCSVCutAtBound(t *testing.T) {
+	fs := newFakeSlack(t)
+	client := newClient(t)
+	e, db := engineFront(t)
+	huge := []byte("athlete,time,bar_m,outcome\n" + strings.Repeat("Mira,2026-11-20T17:00:00Z,1.70,o\n", (maxUploadBytes/33)+10))
+	fs.mu.Lock()
+	fs.files["huge.csv"] = huge
+	fs.mu.Unlock()
+	_, addr, _ := httpFront(t, fs, e, botstore.Dedup{DB: db}, func(c *Config) { c.Workers = 1 })
+	ts := strconv.FormatInt(time.Now().Unix(), 10) + ".000100"
+	body := fileShareDM("Ev-huge", "U0HEAD", "", ts, map[string]any{"id": "F0HUGE", "name": "huge.csv", "url_private_download": fs.url() + "files-pri/huge.csv"})
+	if res := signedPost(t, client, addr+"/slack/events", "application/json", body, time.Now(), nil); res.StatusCode != 200 {
+		t.Fatalf("status %d", res.StatusCode)
+	}
+	waitFor(t, "the reply", func() bool { return len(fs.posted()) >= 1 })
+	if got := blocksText(t, fs.posted()[0]); !strings.Contains(got, "larger than 2.0 MiB") {
+		t.Errorf("reply:\n%s", got)
+	}
+	if len(huge) <= maxUploadBytes {
+		t.Fatalf("fixture of %d bytes is not over the bound", len(huge))
+	}
+}
