@@ -14,4 +14,9 @@ type Request struct {
 	// Local is set by the terminal front end: the speaker sits at the bot's
 	// own computer, so commands that read its files (import csv) may run.
 	Local bool
+	// InboxID names the front end's stored copy of this delivery (its
+	// durable inbox). A command that writes deletes it in its own
+	// transaction, so running the delivery and forgetting it commit
+	// together; "" when there is no stored copy.
+	InboxID string
 }

@@ -116,8 +116,25 @@ func (t *Tx) DeleteInbox(id string) error {
 }
 
 // InboxDelete removes an inbox entry in a transaction of its own (for a
-// delivery that wrote nothing).
+// delivery that wrote nothing). An entry already gone (a writing command
+// deleted it in its own transaction) costs one read and no commit.
 func (db *DB) InboxDelete(ctx context.Context, id string) error {
+	key, err := hex.DecodeString(id)
+	if err != nil || len(key) != 16 {
+		return fmt.Errorf("store: inbox delete: bad id %q", id)
+	}
+	var present bool
+	err = db.View(ctx, func(t *Tx) error {
+		b, err := t.bucket(bucketInbox)
+		if err != nil {
+			return fmt.Errorf("store: inbox delete: %w", err)
+		}
+		present = b.Get(key) != nil
+		return nil
+	})
+	if err != nil || !present {
+		return err
+	}
 	return db.Update(ctx, func(t *Tx) error { return t.DeleteInbox(id) })
 }
 

@@ -90,6 +90,10 @@ type Config struct {
 	Logger  *slog.Logger // nil discards
 	Handler Handler      // required; the engine
 	Dedup   Dedup        // required; store-backed
+	// Inbox keeps every delivery from before its acknowledgement until it
+	// has run, and is replayed at start. nil: work acknowledged but not yet
+	// run is lost in a crash (tests, and the benchmark's floor).
+	Inbox Inbox
 	Users   Users        // nil: users.info with an in-memory cache
 	Clock   bot.Clock    // nil: the wall clock; signature windows, request times, caches
 
@@ -103,7 +107,13 @@ type Config struct {
 	ShutdownTimeout time.Duration // finishing accepted work after cancel; default 10 s
 	PingInterval    time.Duration // socket mode: reconnect when Slack stays silent this long; default 30 s
 	UserTTL         time.Duration // display-name cache; default 1 h
-	MaxBodyBytes    int64         // HTTP request body limit; default 1 MiB
+	MaxBodyBytes    int64         // HTTP request body limit; default 256 KiB (see defaultMaxBodyBytes)
+	BodyTimeout     time.Duration // HTTP: reading one request body; default 5 s
+	MaxConns        int           // HTTP: connections served at once; default 64
+	// ResponseWindow is how long Slack accepts an answer through a
+	// response_url (30 minutes); a delivery replayed at start that is
+	// older is answered in a direct message instead. Default 30 min.
+	ResponseWindow time.Duration
 
 	// HTTPClient carries Web API calls; nil builds one with its own
 	// transport (closed when Run returns) and a 30 s timeout.
@@ -120,7 +130,18 @@ const (
 	defaultShutdownTimeout = 10 * time.Second
 	defaultPingInterval    = 30 * time.Second
 	defaultUserTTL         = time.Hour
-	defaultMaxBodyBytes    = 1 << 20
+	// defaultMaxBodyBytes bounds a request body. The largest payloads
+	// Slack sends us are interaction payloads, which repeat the whole
+	// message the button sits under, blocks included; measured on our own
+	// largest messages (TestLargestPayloads) they stay under 64 KiB
+	// form-encoded, and Slack's own limits on one message (50 blocks of at
+	// most 3,000 characters) put a message's JSON near 160 KiB before
+	// encoding. 256 KiB leaves headroom over ours; a body past it is
+	// refused (413) unread.
+	defaultMaxBodyBytes    = 256 << 10
+	defaultBodyTimeout     = 5 * time.Second
+	defaultMaxConns        = 64
+	defaultResponseWindow  = 30 * time.Minute
 	defaultHTTPTimeout     = 30 * time.Second
 )
 
@@ -198,6 +219,15 @@ func (cfg Config) withDefaults() (Config, Mode, error) {
 	}
 	if cfg.MaxBodyBytes <= 0 {
 		cfg.MaxBodyBytes = defaultMaxBodyBytes
+	}
+	if cfg.BodyTimeout <= 0 {
+		cfg.BodyTimeout = defaultBodyTimeout
+	}
+	if cfg.MaxConns <= 0 {
+		cfg.MaxConns = defaultMaxConns
+	}
+	if cfg.ResponseWindow <= 0 {
+		cfg.ResponseWindow = defaultResponseWindow
 	}
 	return cfg, mode, nil
 }

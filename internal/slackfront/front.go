@@ -116,8 +116,14 @@ func (f *Front) Run(ctx context.Context) error {
 	if err := f.start(ctx); err != nil {
 		return err
 	}
+	// Before any new traffic: run what was acknowledged before a crash,
+	// oldest first; its replies go out beside the new traffic.
+	late := f.replay(ctx)
 	p := f.startPool(ctx)
 	f.pool.Store(p)
+	if len(late) > 0 {
+		p.spawn(func(ctx context.Context) { f.postReplayed(ctx, late) })
+	}
 	var err error
 	switch f.mode {
 	case ModeHTTP:
@@ -173,12 +179,18 @@ type pool struct {
 	closed bool
 	jobs   chan inbound
 	wg     sync.WaitGroup
+	ctx    context.Context
 	cancel context.CancelFunc
+}
+
+// spawn runs fn beside the workers, with their context; stop waits for it.
+func (p *pool) spawn(fn func(context.Context)) {
+	p.wg.Go(func() { fn(p.ctx) })
 }
 
 func (f *Front) startPool(parent context.Context) *pool {
 	ctx, cancel := context.WithCancel(context.WithoutCancel(parent))
-	p := &pool{jobs: make(chan inbound, f.cfg.QueueSize), cancel: cancel}
+	p := &pool{jobs: make(chan inbound, f.cfg.QueueSize), ctx: ctx, cancel: cancel}
 	for range f.cfg.Workers {
 		p.wg.Go(func() {
 			for in := range p.jobs {
