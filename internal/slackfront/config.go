@@ -94,8 +94,8 @@ type Config struct {
 	// has run, and is replayed at start. nil: work acknowledged but not yet
 	// run is lost in a crash (tests, and the benchmark's floor).
 	Inbox Inbox
-	Users   Users        // nil: users.info with an in-memory cache
-	Clock   bot.Clock    // nil: the wall clock; signature windows, request times, caches
+	Users Users     // nil: users.info with an in-memory cache
+	Clock bot.Clock // nil: the wall clock; signature windows, request times, caches
 
 	Workers   int // concurrent commands; default 8
 	QueueSize int // accepted but not yet started; default 32 per worker
@@ -138,11 +138,11 @@ const (
 	// most 3,000 characters) put a message's JSON near 160 KiB before
 	// encoding. 256 KiB leaves headroom over ours; a body past it is
 	// refused (413) unread.
-	defaultMaxBodyBytes    = 256 << 10
-	defaultBodyTimeout     = 5 * time.Second
-	defaultMaxConns        = 64
-	defaultResponseWindow  = 30 * time.Minute
-	defaultHTTPTimeout     = 30 * time.Second
+	defaultMaxBodyBytes   = 256 << 10
+	defaultBodyTimeout    = 5 * time.Second
+	defaultMaxConns       = 64
+	defaultResponseWindow = 30 * time.Minute
+	defaultHTTPTimeout    = 30 * time.Second
 )
 
 // withDefaults checks cfg and fills in defaults. The messages name the
