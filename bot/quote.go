@@ -2,6 +2,8 @@ package bot
 
 import (
 	"fmt"
+	"strings"
+	"unicode"
 	"unicode/utf8"
 )
 
@@ -70,4 +72,33 @@ func cutRunes(s string, n int) string {
 // userMsg formats a refusal with its quotes of input shortened.
 func userMsg(format string, args []any) string {
 	return fmt.Sprintf(format, shortQuoted(format, args)...)
+}
+
+// cutLongWords cuts every word (a run without spaces) longer than
+// maxQuotedRunes: no word of ours is that long, so a long one is pasted
+// input echoed back (a name, an example built from the line).
+func cutLongWords(s string) string {
+	if utf8.RuneCountInString(s) <= maxQuotedRunes {
+		return s
+	}
+	var b strings.Builder
+	start := -1
+	flush := func(end int) {
+		if start >= 0 {
+			b.WriteString(cutRunes(s[start:end], maxQuotedRunes))
+			start = -1
+		}
+	}
+	for i, r := range s {
+		if unicode.IsSpace(r) {
+			flush(i)
+			b.WriteRune(r)
+			continue
+		}
+		if start < 0 {
+			start = i
+		}
+	}
+	flush(len(s))
+	return b.String()
 }
