@@ -56,13 +56,16 @@ func (f *Front) serveHTTP(ctx context.Context) error {
 	ln = netutil.LimitListener(ln, f.cfg.MaxConns)
 	srv := &http.Server{
 		Handler:           f.httpHandler(),
-		ReadHeaderTimeout: 5 * time.Second,
-		ReadTimeout:       f.cfg.BodyTimeout + 5*time.Second,
+		ReadHeaderTimeout: 3 * time.Second,
+		ReadTimeout:       f.cfg.BodyTimeout + 3*time.Second,
 		WriteTimeout:      10 * time.Second,
 		IdleTimeout:       10 * time.Second,
 		MaxHeaderBytes:    maxHeaderBytes,
 		ErrorLog:          slog.NewLogLogger(f.log.Handler(), slog.LevelWarn),
 	}
+	// One request a connection: an idle keep-alive connection would hold
+	// one of the MaxConns slots while new connections wait unserved.
+	srv.SetKeepAlivesEnabled(false)
 	served := make(chan error, 1)
 	go func() { served <- srv.Serve(ln) }()
 	f.log.Info("listening for Slack requests", "addr", addr, "max_conns", f.cfg.MaxConns)

@@ -174,7 +174,7 @@ func (f *Front) replay(ctx context.Context) []replayed {
 	if len(pending) == 0 {
 		return nil
 	}
-	f.log.Info("running deliveries acknowledged before the restart", "count", len(pending))
+	f.log.Warn("running deliveries acknowledged before the restart", "count", len(pending))
 	var out []replayed
 	for _, s := range pending {
 		work, err := f.fromStored(s)
