@@ -47,17 +47,20 @@ type child struct {
 	err  error
 }
 
-// startChild runs bin (the test binary itself when bin is "") as the bot
-// with args and the given environment (nothing else of the test's
+// startChild runs the bot with args: the binary bin, or the test binary
+// itself when bin is "" (see TestMain), and the given environment (nothing else of the test's
 // environment but PATH and HOME). It dies with the test process.
 func startChild(t *testing.T, bin string, env map[string]string, args ...string) *child {
 	t.Helper()
-	raw, _ := json.Marshal(args)
+	var cmd *exec.Cmd
 	if bin == "" {
-		bin = os.Args[0]
+		raw, _ := json.Marshal(args)
+		cmd = exec.Command(os.Args[0], "-test.run=^$")
+		cmd.Env = []string{envChildArgs + "=" + string(raw)}
+	} else {
+		cmd = exec.Command(bin, args...)
 	}
-	cmd := exec.Command(bin, "-test.run=^$")
-	cmd.Env = []string{"PATH=" + os.Getenv("PATH"), "HOME=" + os.Getenv("HOME"), envChildArgs + "=" + string(raw)}
+	cmd.Env = append(cmd.Env, "PATH="+os.Getenv("PATH"), "HOME="+os.Getenv("HOME"))
 	for k, v := range env {
 		cmd.Env = append(cmd.Env, k+"="+v)
 	}

@@ -98,8 +98,7 @@ func (f *Front) signed(next func(http.ResponseWriter, *http.Request, []byte)) ht
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		refuse := func(status int, msg, reason string) {
 			f.log.Warn("refused a request", "path", r.URL.Path, "remote", r.RemoteAddr, "status", status, "reason", reason)
-			w.Header().Set("Connection", "close")
-			http.Error(w, msg, status)
+			refuseAndClose(w, status, msg)
 		}
 		if _, err := checkHeaders(r.Header, f.cfg.Clock.Now()); err != nil {
 			refuse(http.StatusUnauthorized, "invalid request signature", err.Error())
@@ -123,13 +122,30 @@ func (f *Front) signed(next func(http.ResponseWriter, *http.Request, []byte)) ht
 		if err := verifySignature(r.Header, body, f.cfg.SigningSecret, f.cfg.Clock.Now()); err != nil {
 			f.log.Warn("refused a request that failed signature verification",
 				"path", r.URL.Path, "remote", r.RemoteAddr, "reason", err.Error(), "bytes", len(body))
-			w.Header().Set("Connection", "close")
-			http.Error(w, "invalid request signature", http.StatusUnauthorized)
+			refuseAndClose(w, http.StatusUnauthorized, "invalid request signature")
 			return
 		}
 		r.Body = io.NopCloser(bytes.NewReader(body))
 		next(w, r, body)
 	})
+}
+
+// refuseAndClose answers a refused request and closes its connection at
+// once. net/http would otherwise drain part of an unread body, or wait
+// half a second after a half-close before closing, holding one of the
+// MaxConns slots for a client that did not sign.
+func refuseAndClose(w http.ResponseWriter, status int, msg string) {
+	conn, buf, err := http.NewResponseController(w).Hijack()
+	if err != nil {
+		w.Header().Set("Connection", "close")
+		http.Error(w, msg, status)
+		return
+	}
+	defer conn.Close()
+	_ = conn.SetWriteDeadline(time.Now().Add(time.Second))
+	fmt.Fprintf(buf, "HTTP/1.1 %d %s\r\nContent-Type: text/plain; charset=utf-8\r\nConnection: close\r\nContent-Length: %d\r\n\r\n%s\n",
+		status, http.StatusText(status), len(msg)+1, msg)
+	_ = buf.Flush()
 }
 
 // readBody reads a request body of at most limit bytes: into a buffer of
