@@ -80,7 +80,7 @@ func TestLargestPayloads(t *testing.T) {
 		"channel_id": {"C0123456789"}, "channel_name": {"high-jump"}, "user_id": {"U0123456789"}, "user_name": {"a.coach.name"},
 		"command": {"/lath"}, "text": {strings.Repeat("log Mira 1.80 o ", 250)}, "api_app_id": {"A0123456789"},
 		"response_url": {"https://hooks.slack.com/commands/T0123456789/1234567890123/0123456789abcdefABCDEF01"},
-		"trigger_id": {"1234567890123.1234567890123.0123456789abcdef0123456789abcdef"},
+		"trigger_id":   {"1234567890123.1234567890123.0123456789abcdef0123456789abcdef"},
 	}.Encode())
 	// A mention at Slack's longest message text (40,000 characters, from
 	// memory), which the event carries twice: as text and as rich_text

@@ -130,14 +130,13 @@ const (
 	defaultShutdownTimeout = 10 * time.Second
 	defaultPingInterval    = 30 * time.Second
 	defaultUserTTL         = time.Hour
-	// defaultMaxBodyBytes bounds a request body. The largest payloads
-	// Slack sends us are interaction payloads, which repeat the whole
-	// message the button sits under, blocks included; measured on our own
-	// largest messages (TestLargestPayloads) they stay under 64 KiB
-	// form-encoded, and Slack's own limits on one message (50 blocks of at
-	// most 3,000 characters) put a message's JSON near 160 KiB before
-	// encoding. 256 KiB leaves headroom over ours; a body past it is
-	// refused (413) unread.
+	// defaultMaxBodyBytes bounds a request body. Measured
+	// (cmd/lathmark TestLargestPayloads): a button press under our largest
+	// reply on the demo squad 5.3 KB form-encoded (the payload repeats the
+	// message, blocks included); a slash command of 4,000 characters
+	// 4.4 KB; a mention at Slack's longest message (40,000 characters,
+	// carried twice, as text and rich_text blocks) 80 KB. 256 KiB is three
+	// times the largest; a body past it is refused, unread when declared.
 	defaultMaxBodyBytes   = 256 << 10
 	defaultBodyTimeout    = 5 * time.Second
 	defaultMaxConns       = 64
