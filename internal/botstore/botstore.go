@@ -55,8 +55,13 @@ func (d Dedup) Seen(ctx context.Context, id string) (bool, error) {
 	return seen, err
 }
 
-// MarkSeen records id as handled.
+// MarkSeen records id as handled. An id already recorded (a writing
+// command records its message id in its own transaction) costs one read
+// and no commit.
 func (d Dedup) MarkSeen(ctx context.Context, id string) error {
+	if seen, err := d.Seen(ctx, id); err == nil && seen {
+		return nil
+	}
 	now := time.Now
 	if d.Now != nil {
 		now = d.Now
