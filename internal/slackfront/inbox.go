@@ -177,6 +177,12 @@ func (f *Front) replay(ctx context.Context) []replayed {
 	f.log.Warn("running deliveries acknowledged before the restart", "count", len(pending))
 	var out []replayed
 	for _, s := range pending {
+		if ctx.Err() != nil {
+			// Stopped during the start: what did not run stays stored
+			// for the next one.
+			f.log.Warn("stopped before every stored delivery ran; the rest run at the next start", "ran", len(out))
+			break
+		}
 		work, err := f.fromStored(s)
 		if err != nil {
 			// A payload this version cannot read: keep nothing that would
@@ -194,6 +200,11 @@ func (f *Front) replay(ctx context.Context) []replayed {
 		for _, in := range work {
 			in.receivedAt = s.At
 			reply, ok := f.run(ctx, in)
+			if ctx.Err() != nil {
+				// Cut short by a stop: the record stays unless the
+				// command committed (and so deleted it).
+				return out
+			}
 			out = append(out, replayed{in: in, reply: reply, run: ok})
 		}
 	}
