@@ -1,7 +1,6 @@
 package main
 
 import (
-	"context"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -9,7 +8,8 @@ import (
 	"net/http/httptest"
 	"os"
 	"os/exec"
-	"os/signal"
+	"path/filepath"
+	"runtime"
 	"strings"
 	"sync"
 	"syscall"
@@ -19,24 +19,49 @@ import (
 	"github.com/gorilla/websocket"
 )
 
-// envChildArgs, when set, makes the test binary the bot itself: its value
-// is the JSON list of arguments for run. Tests start such children to kill
-// them (SIGKILL) and to measure them from outside (resident memory).
-const envChildArgs = "LATHMARK_TEST_CHILD_ARGS"
+// builtBot is the bot compiled once for the tests that run it as a child
+// process, without the race detector even under -race: a child is killed
+// and measured from outside, and an instrumented one would start slowly and
+// carry the detector's shadow memory into the resident-memory test.
+type builtBot struct {
+	once sync.Once
+	dir  string
+	path string
+	err  error
+}
+
+var testBot builtBot
 
 func TestMain(m *testing.M) {
-	if raw := os.Getenv(envChildArgs); raw != "" {
-		var args []string
-		if err := json.Unmarshal([]byte(raw), &args); err != nil {
-			fmt.Fprintln(os.Stderr, "child: bad args:", err)
-			os.Exit(2)
-		}
-		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-		code := run(ctx, args, stdio{strings.NewReader(""), os.Stdout, os.Stderr}, os.Getenv)
-		stop()
-		os.Exit(code)
+	code := m.Run()
+	if testBot.dir != "" {
+		_ = os.RemoveAll(testBot.dir)
 	}
-	os.Exit(m.Run())
+	os.Exit(code)
+}
+
+// botBinary builds the bot (once per test binary) and returns its path.
+func botBinary(t *testing.T) string {
+	t.Helper()
+	testBot.once.Do(func() {
+		gobin, err := exec.LookPath("go")
+		if err != nil {
+			gobin = filepath.Join(runtime.GOROOT(), "bin", "go")
+		}
+		testBot.dir, testBot.err = os.MkdirTemp("", "lathmark-bot-")
+		if testBot.err != nil {
+			return
+		}
+		testBot.path = filepath.Join(testBot.dir, "lathmark")
+		out, err := exec.Command(gobin, "build", "-o", testBot.path, ".").CombinedOutput()
+		if err != nil {
+			testBot.err = fmt.Errorf("go build: %w\n%s", err, out)
+		}
+	})
+	if testBot.err != nil {
+		t.Fatal(testBot.err)
+	}
+	return testBot.path
 }
 
 // child is a bot process started by a test.
@@ -47,20 +72,13 @@ type child struct {
 	err  error
 }
 
-// startChild runs the bot with args: the binary bin, or the test binary
-// itself when bin is "" (see TestMain), and the given environment (nothing else of the test's
-// environment but PATH and HOME). It dies with the test process.
-func startChild(t *testing.T, bin string, env map[string]string, args ...string) *child {
+// startChild runs the bot (botBinary) with args and the given environment
+// (nothing else of the test's environment but PATH and HOME). It dies with
+// the test process.
+func startChild(t *testing.T, env map[string]string, args ...string) *child {
 	t.Helper()
-	var cmd *exec.Cmd
-	if bin == "" {
-		raw, _ := json.Marshal(args)
-		cmd = exec.Command(os.Args[0], "-test.run=^$")
-		cmd.Env = []string{envChildArgs + "=" + string(raw)}
-	} else {
-		cmd = exec.Command(bin, args...)
-	}
-	cmd.Env = append(cmd.Env, "PATH="+os.Getenv("PATH"), "HOME="+os.Getenv("HOME"))
+	cmd := exec.Command(botBinary(t), args...)
+	cmd.Env = []string{"PATH=" + os.Getenv("PATH"), "HOME=" + os.Getenv("HOME")}
 	for k, v := range env {
 		cmd.Env = append(cmd.Env, k+"="+v)
 	}

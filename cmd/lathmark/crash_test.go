@@ -247,13 +247,13 @@ func TestInboxCrashHTTP(t *testing.T) {
 	rounds := crashRounds()
 	ta := newTally()
 	for round := range rounds {
-		c := startChild(t, "", env, "--http", addr, "--data", data)
+		c := startChild(t, env, "--http", addr, "--data", data)
 		c.waitHealthy(t, addr)
 		ta.countReplayed(c)
 		httpBurst(t, addr, stand, round, ta)
 		c.kill()
 	}
-	c := startChild(t, "", env, "--http", addr, "--data", data)
+	c := startChild(t, env, "--http", addr, "--data", data)
 	c.waitHealthy(t, addr)
 	c.stop(t)
 	ta.countReplayed(c)
@@ -271,13 +271,13 @@ func TestInboxCrashSocket(t *testing.T) {
 	rounds := crashRounds()
 	ta := newTally()
 	for round := range rounds {
-		c := startChild(t, "", env, "--data", data)
+		c := startChild(t, env, "--data", data)
 		sc := stand.nextConn(t, c)
 		ta.countReplayed(c)
 		socketBurst(t, c, sc, stand, round, ta)
 		c.kill()
 	}
-	c := startChild(t, "", env, "--data", data)
+	c := startChild(t, env, "--data", data)
 	stand.nextConn(t, c)
 	c.stop(t)
 	ta.countReplayed(c)

@@ -9,7 +9,6 @@ import (
 	"net/http"
 	"net/url"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"runtime"
 	"strconv"
@@ -31,22 +30,6 @@ const (
 	signedEvery    = 25 * time.Millisecond
 	signedSenders  = 4
 )
-
-// buildBot compiles the bot (without the race detector, whose shadow
-// memory would be measured too) into a temporary folder.
-func buildBot(t *testing.T) string {
-	t.Helper()
-	gobin, err := exec.LookPath("go")
-	if err != nil {
-		gobin = filepath.Join(runtime.GOROOT(), "bin", "go")
-	}
-	bin := filepath.Join(t.TempDir(), "lathmark")
-	cmd := exec.Command(gobin, "build", "-o", bin, ".")
-	if out, err := cmd.CombinedOutput(); err != nil {
-		t.Fatalf("go build: %v\n%s", err, out)
-	}
-	return bin
-}
 
 // procStatus reads one "kB" field of /proc/PID/status, in bytes.
 func procStatus(pid int, field string) (int64, error) {
@@ -121,13 +104,12 @@ func TestHostileClientsBoundedMemory(t *testing.T) {
 	if runtime.GOOS != "linux" {
 		t.Skip("reads /proc/PID/status")
 	}
-	bin := buildBot(t)
 	stand := newStandIn(t)
 	data := filepath.Join(t.TempDir(), "hostile.db")
 	seedSquad(t, data)
 	env := crashEnv(t, stand)
 	addr := freePort(t)
-	c := startChild(t, bin, env, "--http", addr, "--data", data)
+	c := startChild(t, env, "--http", addr, "--data", data)
 	c.waitHealthy(t, addr)
 	pid := c.cmd.Process.Pid
 	idle, _ := procStatus(pid, "VmRSS")

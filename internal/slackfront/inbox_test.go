@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"net/http"
+	"net/url"
 	"sort"
 	"strings"
 	"sync"
@@ -246,4 +247,49 @@ func TestInboxReplaySkipsHandled(t *testing.T) {
 	if n := len(h.requests()); n != 0 {
 		t.Fatalf("a handled delivery ran again (%d)", n)
 	}
+}
+
+// What HTTP mode stores of each kind of request reads back as the same
+// work: a slash command, a mention and a button press, taken from the
+// inbox while their commands are still running.
+func TestInboxStoredPayloadsReadBack(t *testing.T) {
+	fs := newFakeSlack(t)
+	inbox := newMemInbox()
+	h := &recHandler{block: make(chan struct{})}
+	f, base, _ := httpFront(t, fs, h, newMemDedup(), func(c *Config) { c.Inbox = inbox })
+	client := newClient(t)
+	form := func(payload []byte) []byte { return []byte("payload=" + url.QueryEscape(string(payload))) }
+	sends := []struct {
+		path, ctype string
+		body        []byte
+		text        string
+	}{
+		{"/slack/commands", formType, slashForm(fs, "log Kai 1.95 o", "trig-rb1", "C0JUMPS"), "log Kai 1.95 o"},
+		{"/slack/events", "application/json", mentionEvent("Ev-rb2", "C0JUMPS", "U0MIRA", "<@UBOT> best Mira", "1700000080.000100"), "best Mira"},
+		{"/slack/interactive", formType, form(blockActions("U0MIRA", "C0JUMPS", "1700000081.000100", "", "trig-rb3", ActionID+":1", "history Kai 6w")), "history Kai 6w"},
+	}
+	for _, s := range sends {
+		if res := signedPost(t, client, base+s.path, s.ctype, s.body, time.Now(), nil); res.StatusCode != http.StatusOK {
+			t.Fatalf("%s: status %d", s.path, res.StatusCode)
+		}
+	}
+	pending, _ := inbox.Pending(context.Background())
+	got := map[string]bool{}
+	for _, p := range pending {
+		work, err := f.fromStored(p)
+		if err != nil || len(work) != 1 {
+			t.Fatalf("stored %s reads back as %d pieces of work: %v", p.Payload, len(work), err)
+		}
+		if work[0].req.MessageID != p.Key {
+			t.Errorf("delivery key %q, message id read back %q", p.Key, work[0].req.MessageID)
+		}
+		got[work[0].req.Text] = true
+	}
+	close(h.block)
+	for _, s := range sends {
+		if !got[s.text] {
+			t.Errorf("%s: %q not read back from the inbox (have %v)", s.path, s.text, got)
+		}
+	}
+	waitFor(t, "the inbox emptied", func() bool { return inbox.len() == 0 })
 }
