@@ -238,7 +238,16 @@ func (f *Front) fromAction(cb slack.InteractionCallback, retry int, now time.Tim
 // process runs one accepted delivery, posts its reply and forgets its
 // stored copy.
 func (f *Front) process(ctx context.Context, in inbound) {
-	if reply, ok := f.run(ctx, in); ok {
+	reply, ok := f.run(ctx, in)
+	if ctx.Err() != nil && in.inboxID != "" {
+		// Stopping, past the shutdown timeout: the command did not run to
+		// the end (or it committed and deleted its record already). What
+		// is still stored runs at the next start; posting "shutting down"
+		// now would tell the asker nothing was done.
+		f.log.Warn("stopping: left a delivery in the inbox for the next start", "kind", in.kind, "message_id", in.req.MessageID)
+		return
+	}
+	if ok {
 		f.post(ctx, in, reply)
 	}
 	f.forget(ctx, in)

@@ -293,3 +293,28 @@ func TestInboxStoredPayloadsReadBack(t *testing.T) {
 	}
 	waitFor(t, "the inbox emptied", func() bool { return inbox.len() == 0 })
 }
+
+// Work still running when the shutdown timeout runs out stays in the inbox
+// for the next start, and no "shutting down" answer is posted for it.
+func TestInboxKeptAtShutdownTimeout(t *testing.T) {
+	fs := newFakeSlack(t)
+	inbox := newMemInbox()
+	h := HandlerFunc(func(ctx context.Context, req bot.Request) bot.Reply {
+		<-ctx.Done()
+		return bot.Reply{Kind: bot.KindInternal, Title: "Not done", Lines: []string{"The bot is shutting down; nothing was changed."}}
+	})
+	_, base, stop := httpFront(t, fs, h, newMemDedup(), func(c *Config) { c.Inbox = inbox; c.ShutdownTimeout = 100 * time.Millisecond })
+	client := newClient(t)
+	if res := signedPost(t, client, base+"/slack/commands", formType, slashForm(fs, "log Kai 1.95 o", "trig-sd", "C0JUMPS"), time.Now(), nil); res.StatusCode != http.StatusOK {
+		t.Fatalf("status %d", res.StatusCode)
+	}
+	if err := stop(); err != nil {
+		t.Fatal(err)
+	}
+	if inbox.len() != 1 {
+		t.Fatalf("inbox holds %d after a stop cut the work short, want 1", inbox.len())
+	}
+	if n := len(fs.posted()); n != 0 {
+		t.Fatalf("%d answers posted for work left for the next start", n)
+	}
+}
