@@ -99,7 +99,8 @@ func (f *Front) Addr() string {
 
 // Run connects to Slack and serves until ctx is cancelled or a fatal error
 // (refused tokens, a listener that cannot bind) stops it. It starts with
-// auth.test, bounded by Config.StartTimeout. On cancel it stops taking new
+// auth.test, bounded by Config.StartTimeout, then runs what the Inbox
+// holds from an earlier run before it takes new traffic. On cancel it stops taking new
 // work, lets accepted work finish (at most Config.ShutdownTimeout), and
 // returns nil with no goroutine of its own left running. Ready is closed
 // only once serving starts; an error before that (including a ctx cancelled
