@@ -171,3 +171,28 @@ func (db *DB) InboxEntries(ctx context.Context) ([]InboxEntry, error) {
 	})
 	return out, err
 }
+
+// inboxInvariants checks the inbox bucket, when there is one: 16-byte
+// keys, values that decode, and a sequence equal to the number of entries
+// (the bound is checked against it).
+func inboxInvariants(tx *bolt.Tx, p *problemList) {
+	b := tx.Bucket([]byte(bucketInbox))
+	if b == nil {
+		return
+	}
+	var n uint64
+	_ = b.ForEach(func(k, v []byte) error {
+		n++
+		if len(k) != 16 {
+			p.add("inbox key %x is %d bytes, want 16", k, len(k))
+		}
+		var iv inboxValue
+		if err := json.Unmarshal(v, &iv); err != nil {
+			p.add("inbox entry %x: %v", k, err)
+		}
+		return nil
+	})
+	if seq := b.Sequence(); seq != n {
+		p.add("inbox counts %d entries in its sequence but holds %d", seq, n)
+	}
+}
