@@ -136,6 +136,7 @@ func TestHostileClientsBoundedMemory(t *testing.T) {
 	var (
 		mu                sync.Mutex
 		answered, refused int
+		retried           int
 		slowest           time.Duration
 		peakSeen          int64
 		senders           sync.WaitGroup
@@ -158,6 +159,20 @@ func TestHostileClientsBoundedMemory(t *testing.T) {
 				req.Header.Set("X-Slack-Signature", slackfront.Signature(crashSecret, ts, []byte(body)))
 				start := time.Now()
 				res, err := client.Do(req)
+				if err != nil {
+					// No answer at all (the connection was dropped while
+					// it waited behind the attackers): Slack retries an
+					// event that got none; so does this sender, once.
+					t.Logf("signed request %s: %v; sending it again", trigger, err)
+					mu.Lock()
+					retried++
+					mu.Unlock()
+					req, _ = http.NewRequest(http.MethodPost, "http://"+addr+"/slack/commands", strings.NewReader(body))
+					req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
+					req.Header.Set("X-Slack-Request-Timestamp", ts)
+					req.Header.Set("X-Slack-Signature", slackfront.Signature(crashSecret, ts, []byte(body)))
+					res, err = client.Do(req)
+				}
 				if err == nil {
 					_, _ = io.Copy(io.Discard, res.Body)
 					res.Body.Close()
@@ -186,8 +201,8 @@ func TestHostileClientsBoundedMemory(t *testing.T) {
 		t.Fatal(err)
 	}
 	c.stop(t)
-	t.Logf("hostile clients: %d clients, %d requests of 1 MiB sent; bot resident idle %.1f MB, peak (VmHWM) %.1f MB, highest sample %.1f MB; signed: %d answered, %d not, slowest %v",
-		hostileClients, attacks.Load(), mb(idle), mb(hwm), mb(peakSeen), answered, refused, slowest.Round(time.Millisecond))
+	t.Logf("hostile clients: %d clients, %d requests of 1 MiB sent; bot resident idle %.1f MB, peak (VmHWM) %.1f MB, highest sample %.1f MB; signed: %d answered, %d not, %d sent twice, slowest %v",
+		hostileClients, attacks.Load(), mb(idle), mb(hwm), mb(peakSeen), answered, refused, retried, slowest.Round(time.Millisecond))
 	if hwm >= maxRSSBytes {
 		t.Errorf("peak resident %.1f MB, want under %.0f MB", mb(hwm), mb(maxRSSBytes))
 	}

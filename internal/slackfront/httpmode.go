@@ -56,8 +56,8 @@ func (f *Front) serveHTTP(ctx context.Context) error {
 	ln = netutil.LimitListener(ln, f.cfg.MaxConns)
 	srv := &http.Server{
 		Handler:           f.httpHandler(),
-		ReadHeaderTimeout: 3 * time.Second,
-		ReadTimeout:       f.cfg.BodyTimeout + 3*time.Second,
+		ReadHeaderTimeout: 5 * time.Second,
+		ReadTimeout:       f.cfg.BodyTimeout + 5*time.Second,
 		WriteTimeout:      10 * time.Second,
 		IdleTimeout:       10 * time.Second,
 		MaxHeaderBytes:    maxHeaderBytes,
