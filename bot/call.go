@@ -166,6 +166,9 @@ func (c *call) once(fn func(Tx) error) func(Tx) error {
 				return err
 			}
 		}
+		if err := c.forgetDelivery(tx); err != nil {
+			return err
+		}
 		return fn(tx)
 	}
 }

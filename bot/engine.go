@@ -116,7 +116,7 @@ func wantsMore(cmd command, args []token) ([]token, bool) {
 func (e *Engine) refusal(req Request, err error) Reply {
 	var ue *UserError
 	if errors.As(err, &ue) {
-		return Reply{Kind: ue.Kind, Title: "Not done", Lines: []string{ue.Msg}, Example: ue.Example, Ephemeral: true}
+		return Reply{Kind: ue.Kind, Title: "Not done", Lines: []string{cutLongWords(ue.Msg)}, Example: cutLongWords(ue.Example), Ephemeral: true}
 	}
 	if errors.Is(err, errDuplicate) {
 		return Reply{Title: "Already done", Lines: []string{"That message was already handled; nothing was logged twice."}, Ephemeral: true}

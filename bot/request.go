@@ -18,6 +18,11 @@ type Request struct {
 	// fetched it (Slack: a CSV sent to the bot for `import csv`); nil when
 	// none. A pointer, so that a Request stays comparable.
 	Upload *Upload
+	// InboxID names the front end's stored copy of this delivery (its
+	// durable inbox). A command that writes deletes it in its own
+	// transaction, so running the delivery and forgetting it commit
+	// together; "" when there is no stored copy.
+	InboxID string
 }
 
 // Upload is one file shared with a message. Data is nil when the front end

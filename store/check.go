@@ -47,7 +47,8 @@ func Check(path string) (err error) {
 //     athlete, time and Seq;
 //   - every line's key matches its user and time, and its athlete (if any)
 //     exists; every user's key is its ID and its linked athlete exists;
-//   - seen and digest values are 8-byte times; audit keys match their times.
+//   - seen and digest values are 8-byte times; audit keys match their times;
+//   - inbox entries decode and the inbox's count matches them.
 //
 // On a read-write DB it runs in a write transaction (rolled back), which
 // bbolt requires for checking while other writers may run; writers wait.
@@ -260,6 +261,7 @@ func invariants(tx *bolt.Tx) *problemList {
 		}
 		return nil
 	})
+	inboxInvariants(tx, p)
 	return p
 }
 

@@ -176,3 +176,31 @@ func TestOpenTightensMode(t *testing.T) {
 		t.Errorf("no warning logged: %q", logBuf.String())
 	}
 }
+
+// Check reports an inbox whose count has drifted from its entries (the
+// bound would then refuse too early or too late).
+func TestCheckInboxCount(t *testing.T) {
+	ctx := context.Background()
+	db, _ := openInboxDB(t)
+	at := time.Date(2026, 5, 1, 10, 0, 0, 0, time.UTC)
+	for range 3 {
+		if err := db.InboxPut(ctx, InboxEntry{ID: db.NewInboxID(at), Key: "k", At: at}, 0); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := db.Check(); err != nil {
+		t.Fatalf("a sound inbox: %v", err)
+	}
+	if err := db.Update(ctx, func(tx *Tx) error {
+		b, err := tx.bucket(bucketInbox)
+		if err != nil {
+			return err
+		}
+		return b.SetSequence(7)
+	}); err != nil {
+		t.Fatal(err)
+	}
+	if err := db.Check(); err == nil || !strings.Contains(err.Error(), "inbox counts 7 entries") {
+		t.Fatalf("a drifted count: %v", err)
+	}
+}

@@ -11,10 +11,15 @@ import (
 	"github.com/lathmark-team/lathmark/bot"
 	"github.com/lathmark-team/lathmark/internal/botstore"
 	"github.com/lathmark-team/lathmark/internal/digest"
+	"github.com/lathmark-team/lathmark/internal/inboxstore"
 	"github.com/lathmark-team/lathmark/internal/record"
 	"github.com/lathmark-team/lathmark/internal/slackfront"
 	"github.com/lathmark-team/lathmark/internal/weekly"
 )
+
+// inboxLimit bounds the deliveries acknowledged but not yet run; past it
+// the bot answers "busy, nothing was done" rather than take more.
+const inboxLimit = 10000
 
 // runSlack serves the Slack workspace until ctx ends, with the weekly digest
 // and the nightly backup on the team's schedule.
@@ -23,6 +28,7 @@ func (a *app) runSlack(ctx context.Context) error {
 		BotToken: a.cfg.BotToken, AppToken: a.cfg.AppToken, SigningSecret: a.cfg.SigningSecret,
 		APIURL: a.cfg.APIURL, HTTPAddr: a.cfg.HTTPAddr, Logger: a.log,
 		Handler: a.engine, Dedup: botstore.Dedup{DB: a.db},
+		Inbox: inboxstore.Inbox{DB: a.db, Limit: inboxLimit},
 	})
 	if err != nil {
 		return err

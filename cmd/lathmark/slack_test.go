@@ -31,7 +31,7 @@ type fakeSlack struct {
 	msgs []string
 }
 
-func newFakeSlack(t *testing.T) *fakeSlack {
+func newFakeSlack(t testing.TB) *fakeSlack {
 	f := &fakeSlack{}
 	f.srv = httptest.NewServer(http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		body, _ := io.ReadAll(r.Body)

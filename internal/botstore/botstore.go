@@ -1,7 +1,9 @@
 // Package botstore joins the command engine and the chat front ends to the
 // bbolt store: it adapts store.DB, whose transactions are *store.Tx, to the
 // bot.Store interface, whose transactions are bot.Tx, and to the front ends'
-// record of handled deliveries. It holds no logic of its own.
+// record of handled deliveries. It holds no logic of its own. (The durable
+// inbox's adapter is internal/inboxstore, apart so that the front end's
+// tests can use this package.)
 package botstore
 
 import (
@@ -52,8 +54,13 @@ func (d Dedup) Seen(ctx context.Context, id string) (bool, error) {
 	return seen, err
 }
 
-// MarkSeen records id as handled.
+// MarkSeen records id as handled. An id already recorded (a writing
+// command records its message id in its own transaction) costs one read
+// and no commit.
 func (d Dedup) MarkSeen(ctx context.Context, id string) error {
+	if seen, err := d.Seen(ctx, id); err == nil && seen {
+		return nil
+	}
 	now := time.Now
 	if d.Now != nil {
 		now = d.Now

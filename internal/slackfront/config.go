@@ -90,8 +90,12 @@ type Config struct {
 	Logger  *slog.Logger // nil discards
 	Handler Handler      // required; the engine
 	Dedup   Dedup        // required; store-backed
-	Users   Users        // nil: users.info with an in-memory cache
-	Clock   bot.Clock    // nil: the wall clock; signature windows, request times, caches
+	// Inbox keeps every delivery from before its acknowledgement until it
+	// has run, and is replayed at start. nil: work acknowledged but not yet
+	// run is lost in a crash (tests, and the benchmark's floor).
+	Inbox Inbox
+	Users Users     // nil: users.info with an in-memory cache
+	Clock bot.Clock // nil: the wall clock; signature windows, request times, caches
 
 	Workers   int // concurrent commands; default 8
 	QueueSize int // accepted but not yet started; default 32 per worker
@@ -103,7 +107,13 @@ type Config struct {
 	ShutdownTimeout time.Duration // finishing accepted work after cancel; default 10 s
 	PingInterval    time.Duration // socket mode: reconnect when Slack stays silent this long; default 30 s
 	UserTTL         time.Duration // display-name cache; default 1 h
-	MaxBodyBytes    int64         // HTTP request body limit; default 1 MiB
+	MaxBodyBytes    int64         // HTTP request body limit; default 256 KiB (see defaultMaxBodyBytes)
+	BodyTimeout     time.Duration // HTTP: reading one request body; default 5 s
+	MaxConns        int           // HTTP: connections served at once; default 64
+	// ResponseWindow is how long Slack accepts an answer through a
+	// response_url (30 minutes); a delivery replayed at start that is
+	// older is answered in a direct message instead. Default 30 min.
+	ResponseWindow time.Duration
 
 	// HTTPClient carries Web API calls; nil builds one with its own
 	// transport (closed when Run returns) and a 30 s timeout.
@@ -120,8 +130,18 @@ const (
 	defaultShutdownTimeout = 10 * time.Second
 	defaultPingInterval    = 30 * time.Second
 	defaultUserTTL         = time.Hour
-	defaultMaxBodyBytes    = 1 << 20
-	defaultHTTPTimeout     = 30 * time.Second
+	// defaultMaxBodyBytes bounds a request body. Measured
+	// (cmd/lathmark TestLargestPayloads): a button press under our largest
+	// reply on the demo squad 5.3 KB form-encoded (the payload repeats the
+	// message, blocks included); a slash command of 4,000 characters
+	// 4.4 KB; a mention at Slack's longest message (40,000 characters,
+	// carried twice, as text and rich_text blocks) 80 KB. 256 KiB is three
+	// times the largest; a body past it is refused, unread when declared.
+	defaultMaxBodyBytes   = 256 << 10
+	defaultBodyTimeout    = 5 * time.Second
+	defaultMaxConns       = 64
+	defaultResponseWindow = 30 * time.Minute
+	defaultHTTPTimeout    = 30 * time.Second
 )
 
 // withDefaults checks cfg and fills in defaults. The messages name the
@@ -198,6 +218,15 @@ func (cfg Config) withDefaults() (Config, Mode, error) {
 	}
 	if cfg.MaxBodyBytes <= 0 {
 		cfg.MaxBodyBytes = defaultMaxBodyBytes
+	}
+	if cfg.BodyTimeout <= 0 {
+		cfg.BodyTimeout = defaultBodyTimeout
+	}
+	if cfg.MaxConns <= 0 {
+		cfg.MaxConns = defaultMaxConns
+	}
+	if cfg.ResponseWindow <= 0 {
+		cfg.ResponseWindow = defaultResponseWindow
 	}
 	return cfg, mode, nil
 }

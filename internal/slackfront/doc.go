@@ -5,15 +5,27 @@
 // Two ways in, chosen by Config:
 //
 //   - Socket mode (Config.AppToken, an xapp- token): a websocket opened by
-//     the bot. Every envelope is acknowledged at once and the work is done
-//     afterwards by a bounded worker pool; the events channel is always
+//     the bot. Every envelope is stored in the Inbox, then acknowledged,
+//     and the work is done afterwards by a bounded worker pool; the events channel is always
 //     drained; slack-go reconnects with exponential backoff after a dropped
 //     connection or a disconnect frame; an auth error stops Run with a
 //     message that names the token to check.
 //   - Signed HTTP (Config.HTTPAddr and Config.SigningSecret): POST
 //     /slack/events, /slack/commands and /slack/interactive, GET /healthz.
-//     Every request's v0 signature and timestamp are checked before anything
-//     else runs; the HTTP request is answered at once and the work is queued.
+//     The signature headers and the declared length are checked before any
+//     of the body is read, the body is bounded (Config.MaxBodyBytes) and
+//     must arrive within Config.BodyTimeout, and at most Config.MaxConns
+//     connections are served at once, one request each. A signed request
+//     is stored in the Inbox, answered 200, and its work queued.
+//
+// The durable inbox: every delivery is written to Config.Inbox (the data
+// file, through the group commit) before Slack hears it was accepted, and
+// forgotten once it has run; a writing command forgets it inside its own
+// transaction (bot.Request.InboxID), so a crash never runs it twice. Run
+// starts by running what the inbox still holds, oldest first, before it
+// listens or connects; a reply to a request older than
+// Config.ResponseWindow goes as a direct message that says what was run.
+// A full inbox answers "busy, nothing was done".
 //
 // Commands arrive as a slash command (any name; the manifest suggests /lath),
 // as a mention of the bot in a channel (the reply goes in a thread) or as a

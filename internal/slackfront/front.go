@@ -101,7 +101,8 @@ func (f *Front) Addr() string {
 
 // Run connects to Slack and serves until ctx is cancelled or a fatal error
 // (refused tokens, a listener that cannot bind) stops it. It starts with
-// auth.test, bounded by Config.StartTimeout. On cancel it stops taking new
+// auth.test, bounded by Config.StartTimeout, then runs what the Inbox
+// holds from an earlier run before it takes new traffic. On cancel it stops taking new
 // work, lets accepted work finish (at most Config.ShutdownTimeout), and
 // returns nil with no goroutine of its own left running. Ready is closed
 // only once serving starts; an error before that (including a ctx cancelled
@@ -118,8 +119,14 @@ func (f *Front) Run(ctx context.Context) error {
 	if err := f.start(ctx); err != nil {
 		return err
 	}
+	// Before any new traffic: run what was acknowledged before a crash,
+	// oldest first; its replies go out beside the new traffic.
+	late := f.replay(ctx)
 	p := f.startPool(ctx)
 	f.pool.Store(p)
+	if len(late) > 0 {
+		p.spawn(func(ctx context.Context) { f.postReplayed(ctx, late) })
+	}
 	var err error
 	switch f.mode {
 	case ModeHTTP:
@@ -175,12 +182,18 @@ type pool struct {
 	closed bool
 	jobs   chan inbound
 	wg     sync.WaitGroup
+	ctx    context.Context
 	cancel context.CancelFunc
+}
+
+// spawn runs fn beside the workers, with their context; stop waits for it.
+func (p *pool) spawn(fn func(context.Context)) {
+	p.wg.Go(func() { fn(p.ctx) })
 }
 
 func (f *Front) startPool(parent context.Context) *pool {
 	ctx, cancel := context.WithCancel(context.WithoutCancel(parent))
-	p := &pool{jobs: make(chan inbound, f.cfg.QueueSize), cancel: cancel}
+	p := &pool{jobs: make(chan inbound, f.cfg.QueueSize), ctx: ctx, cancel: cancel}
 	for range f.cfg.Workers {
 		p.wg.Go(func() {
 			for in := range p.jobs {

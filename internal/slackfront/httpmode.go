@@ -15,9 +15,10 @@ import (
 
 	"github.com/slack-go/slack"
 	"github.com/slack-go/slack/slackevents"
+	"golang.org/x/net/netutil"
 )
 
-// busyText answers a slash command when the queue is full.
+// busyText answers a slash command when the inbox or the queue is full.
 const busyText = "I'm busy with other commands right now; nothing was done. Please send it again in a moment."
 
 // httpHandler is the HTTP handler of HTTP mode: POST /slack/events,
@@ -34,9 +35,17 @@ func (f *Front) httpHandler() http.Handler {
 	return mux
 }
 
+// maxHeaderBytes bounds a request's headers (Slack's are well under 4 KiB;
+// net/http's default would let each connection hold 1 MiB).
+const maxHeaderBytes = 16 << 10
+
 // serveHTTP listens on Config.HTTPAddr until ctx is cancelled, then shuts
 // the server down gracefully: handlers in progress finish, new connections
-// are refused.
+// are refused. At most Config.MaxConns connections are served at once
+// (netutil.LimitListener: the rest wait in the kernel's accept queue, where
+// they cost the process nothing), so clients that never sign cannot make
+// the bot hold memory; headers, bodies and idle connections have short
+// deadlines so that a slow client frees its slot soon.
 func (f *Front) serveHTTP(ctx context.Context) error {
 	ln, err := net.Listen("tcp", f.cfg.HTTPAddr)
 	if err != nil {
@@ -44,17 +53,22 @@ func (f *Front) serveHTTP(ctx context.Context) error {
 	}
 	addr := ln.Addr().String()
 	f.addr.Store(&addr)
+	ln = netutil.LimitListener(ln, f.cfg.MaxConns)
 	srv := &http.Server{
 		Handler:           f.httpHandler(),
 		ReadHeaderTimeout: 5 * time.Second,
-		ReadTimeout:       10 * time.Second,
+		ReadTimeout:       f.cfg.BodyTimeout + 5*time.Second,
 		WriteTimeout:      10 * time.Second,
-		IdleTimeout:       60 * time.Second,
+		IdleTimeout:       10 * time.Second,
+		MaxHeaderBytes:    maxHeaderBytes,
 		ErrorLog:          slog.NewLogLogger(f.log.Handler(), slog.LevelWarn),
 	}
+	// One request a connection: an idle keep-alive connection would hold
+	// one of the MaxConns slots while new connections wait unserved.
+	srv.SetKeepAlivesEnabled(false)
 	served := make(chan error, 1)
 	go func() { served <- srv.Serve(ln) }()
-	f.log.Info("listening for Slack requests", "addr", addr)
+	f.log.Info("listening for Slack requests", "addr", addr, "max_conns", f.cfg.MaxConns)
 	close(f.ready)
 
 	select {
@@ -74,31 +88,101 @@ func (f *Front) serveHTTP(ctx context.Context) error {
 	return nil
 }
 
-// signed reads the body once (at most Config.MaxBodyBytes), verifies
-// Slack's signature before anything else runs, and restores the body for
-// the parsers. Refusals are logged without the body.
+// signed guards every Slack endpoint. Before any of the body is read it
+// checks the signature headers (present, timestamp within 5 minutes) and
+// the declared length; then it reads at most Config.MaxBodyBytes within
+// Config.BodyTimeout, verifies the signature over the body, and restores
+// the body for the parsers. A refusal closes the connection, answers in a
+// few words, and is logged without the body.
 func (f *Front) signed(next func(http.ResponseWriter, *http.Request, []byte)) http.Handler {
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
-		body, err := io.ReadAll(http.MaxBytesReader(w, r.Body, f.cfg.MaxBodyBytes))
+		refuse := func(status int, msg, reason string) {
+			f.log.Warn("refused a request", "path", r.URL.Path, "remote", r.RemoteAddr, "status", status, "reason", reason)
+			refuseAndClose(w, status, msg)
+		}
+		if _, err := checkHeaders(r.Header, f.cfg.Clock.Now()); err != nil {
+			refuse(http.StatusUnauthorized, "invalid request signature", err.Error())
+			return
+		}
+		if r.ContentLength > f.cfg.MaxBodyBytes {
+			refuse(http.StatusRequestEntityTooLarge, "request body too large", fmt.Sprintf("declared %d bytes, limit %d", r.ContentLength, f.cfg.MaxBodyBytes))
+			return
+		}
+		_ = http.NewResponseController(w).SetReadDeadline(time.Now().Add(f.cfg.BodyTimeout))
+		body, err := readBody(w, r, f.cfg.MaxBodyBytes)
 		if err != nil {
 			var tooBig *http.MaxBytesError
 			if errors.As(err, &tooBig) {
-				f.log.Warn("refused an oversized request", "path", r.URL.Path, "remote", r.RemoteAddr, "limit", f.cfg.MaxBodyBytes)
-				http.Error(w, "request body too large", http.StatusRequestEntityTooLarge)
+				refuse(http.StatusRequestEntityTooLarge, "request body too large", fmt.Sprintf("over the limit of %d bytes", f.cfg.MaxBodyBytes))
 				return
 			}
-			http.Error(w, "could not read the request", http.StatusBadRequest)
+			refuse(http.StatusBadRequest, "could not read the request", err.Error())
 			return
 		}
 		if err := verifySignature(r.Header, body, f.cfg.SigningSecret, f.cfg.Clock.Now()); err != nil {
 			f.log.Warn("refused a request that failed signature verification",
 				"path", r.URL.Path, "remote", r.RemoteAddr, "reason", err.Error(), "bytes", len(body))
-			http.Error(w, "invalid request signature", http.StatusUnauthorized)
+			refuseAndClose(w, http.StatusUnauthorized, "invalid request signature")
 			return
 		}
 		r.Body = io.NopCloser(bytes.NewReader(body))
 		next(w, r, body)
 	})
+}
+
+// refuseAndClose answers a refused request and closes its connection at
+// once. net/http would otherwise drain part of an unread body, or wait
+// half a second after a half-close before closing, holding one of the
+// MaxConns slots for a client that did not sign.
+func refuseAndClose(w http.ResponseWriter, status int, msg string) {
+	conn, buf, err := http.NewResponseController(w).Hijack()
+	if err != nil {
+		w.Header().Set("Connection", "close")
+		http.Error(w, msg, status)
+		return
+	}
+	defer conn.Close()
+	_ = conn.SetWriteDeadline(time.Now().Add(time.Second))
+	fmt.Fprintf(buf, "HTTP/1.1 %d %s\r\nContent-Type: text/plain; charset=utf-8\r\nConnection: close\r\nContent-Length: %d\r\n\r\n%s\n",
+		status, http.StatusText(status), len(msg)+1, msg)
+	_ = buf.Flush()
+}
+
+// readBody reads a request body of at most limit bytes: into a buffer of
+// the declared length when there is one (no growing and copying), else
+// through a growing buffer that stops at the limit.
+func readBody(w http.ResponseWriter, r *http.Request, limit int64) ([]byte, error) {
+	rd := http.MaxBytesReader(w, r.Body, limit)
+	if r.ContentLength >= 0 && r.ContentLength <= limit {
+		buf := make([]byte, r.ContentLength)
+		if _, err := io.ReadFull(rd, buf); err != nil {
+			return nil, err
+		}
+		return buf, nil
+	}
+	return io.ReadAll(rd)
+}
+
+// accept stores a delivery in the inbox (when there is one) and queues its
+// work; false means it was refused and nothing will run: the inbox or the
+// queue is full, or the store failed.
+func (f *Front) accept(ctx context.Context, via string, body []byte, at time.Time, work []inbound) bool {
+	if err := f.store(ctx, via, body, at, work); err != nil {
+		if errors.Is(err, ErrInboxFull) {
+			f.log.Warn("inbox full; refused a delivery", "err", err)
+		} else {
+			f.log.Error("could not store a delivery; refused it", "err", err)
+		}
+		return false
+	}
+	for _, in := range work {
+		if !f.pool.Load().offer(in) {
+			f.log.Warn("work queue full; refused a delivery", "queue", f.cfg.QueueSize)
+			f.unstore(ctx, work)
+			return false
+		}
+	}
+	return true
 }
 
 // retryOf reads X-Slack-Retry-Num: how many times Slack has sent this event
@@ -151,9 +235,9 @@ func (f *Front) handleEvents(w http.ResponseWriter, r *http.Request, body []byte
 		w.WriteHeader(http.StatusOK)
 		return
 	}
-	if !f.pool.Load().offer(in) {
-		f.log.Warn("work queue full; asking Slack to deliver the event again later", "queue", f.cfg.QueueSize)
-		http.Error(w, "busy", http.StatusServiceUnavailable)
+	if !f.accept(r.Context(), viaEvent, body, f.cfg.Clock.Now(), []inbound{in}) {
+		// Slack delivers an event that got no 2xx again, later.
+		http.Error(w, "busy, nothing was done", http.StatusServiceUnavailable)
 		return
 	}
 	w.WriteHeader(http.StatusOK)
@@ -161,14 +245,14 @@ func (f *Front) handleEvents(w http.ResponseWriter, r *http.Request, body []byte
 
 // handleCommand queues a slash command and answers 200 with an empty body
 // at once; the reply follows through the response_url.
-func (f *Front) handleCommand(w http.ResponseWriter, r *http.Request, _ []byte) {
+func (f *Front) handleCommand(w http.ResponseWriter, r *http.Request, body []byte) {
 	cmd, err := slack.SlashCommandParse(r)
 	if err != nil || cmd.UserID == "" {
 		http.Error(w, "not a slash command", http.StatusBadRequest)
 		return
 	}
-	if !f.pool.Load().offer(f.fromSlash(cmd, retryOf(r))) {
-		f.log.Warn("work queue full; told the asker to try again", "queue", f.cfg.QueueSize)
+	now := f.cfg.Clock.Now()
+	if !f.accept(r.Context(), viaCommandForm, body, now, []inbound{f.fromSlash(cmd, retryOf(r), now)}) {
 		w.Header().Set("Content-Type", "application/json")
 		_ = json.NewEncoder(w).Encode(map[string]string{"response_type": slack.ResponseTypeEphemeral, "text": busyText})
 		return
@@ -183,12 +267,10 @@ func (f *Front) handleInteractive(w http.ResponseWriter, r *http.Request, _ []by
 		http.Error(w, "not an interaction payload", http.StatusBadRequest)
 		return
 	}
-	for _, in := range f.fromAction(cb, retryOf(r)) {
-		if !f.pool.Load().offer(in) {
-			f.log.Warn("work queue full; the button press was not run", "queue", f.cfg.QueueSize)
-			http.Error(w, "busy", http.StatusServiceUnavailable)
-			return
-		}
+	now := f.cfg.Clock.Now()
+	if !f.accept(r.Context(), viaInteractive, []byte(r.PostFormValue("payload")), now, f.fromAction(cb, retryOf(r), now)) {
+		http.Error(w, "busy, nothing was done", http.StatusServiceUnavailable)
+		return
 	}
 	w.WriteHeader(http.StatusOK)
 }

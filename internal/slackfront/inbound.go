@@ -22,6 +22,12 @@ type inbound struct {
 	userName string       // the name Slack sent along, if any, used when users.info fails
 	retry    int          // Slack's retry count (X-Slack-Retry-Num or retry_attempt)
 	files    []sharedFile // files shared with the message (files.go)
+	// inboxID is the stored copy of the delivery (see Inbox); the work
+	// forgets it once done. "" when nothing is stored for this piece.
+	inboxID string
+	// receivedAt is set on work replayed from the inbox at start: when
+	// Slack sent it. A reply past the response window goes privately.
+	receivedAt time.Time
 }
 
 // dedupKey is one id under which a delivery is remembered. notice, when
@@ -125,8 +131,7 @@ func (f *Front) messageInbound(kind, channel, user, text, ts, threadTS, eventID 
 // trigger_id, unique per invocation and repeated when Slack re-delivers the
 // same envelope; without one, a hash of who typed what where in which
 // minute (so an identical command typed twice within a minute runs once).
-func (f *Front) fromSlash(c slack.SlashCommand, retry int) inbound {
-	now := f.cfg.Clock.Now()
+func (f *Front) fromSlash(c slack.SlashCommand, retry int, now time.Time) inbound {
 	id := "cmd:" + c.TriggerID
 	if c.TriggerID == "" {
 		id = "cmd:h:" + hashID(c.TeamID, c.UserID, c.ChannelID, c.Command, c.Text, now.UTC().Truncate(time.Minute).Format(time.RFC3339))
@@ -167,7 +172,7 @@ func isExpandAction(id string) bool {
 // button's value runs as a command typed by the presser, answered in the
 // same channel and thread. Payloads that are not button presses, and
 // presses of other apps' buttons, give nothing.
-func (f *Front) fromAction(cb slack.InteractionCallback, retry int) []inbound {
+func (f *Front) fromAction(cb slack.InteractionCallback, retry int, now time.Time) []inbound {
 	if cb.Type != slack.InteractionTypeBlockActions || cb.User.ID == "" {
 		return nil
 	}
@@ -208,7 +213,7 @@ func (f *Front) fromAction(cb slack.InteractionCallback, retry int) []inbound {
 		press := keys[len(keys)-1].id
 		when, ok := tsTime(a.ActionTs)
 		if !ok {
-			when = f.cfg.Clock.Now()
+			when = now
 		}
 		req := bot.Request{
 			UserID:    cb.User.ID,
@@ -239,28 +244,45 @@ func (f *Front) fromAction(cb slack.InteractionCallback, retry int) []inbound {
 	return out
 }
 
-// process runs one accepted delivery: drop it if it was handled before
-// (here or, through Dedup, in an earlier run), otherwise hand it to the
-// engine, remember it, and post the reply.
+// process runs one accepted delivery, posts its reply and forgets its
+// stored copy.
 func (f *Front) process(ctx context.Context, in inbound) {
+	reply, ok := f.run(ctx, in)
+	if ctx.Err() != nil && in.inboxID != "" {
+		// Stopping, past the shutdown timeout: the command did not run to
+		// the end (or it committed and deleted its record already). What
+		// is still stored runs at the next start; posting "shutting down"
+		// now would tell the asker nothing was done.
+		f.log.Warn("stopping: left a delivery in the inbox for the next start", "kind", in.kind, "message_id", in.req.MessageID)
+		return
+	}
+	if ok {
+		f.post(ctx, in, reply)
+	}
+	f.forget(ctx, in)
+}
+
+// run drops a delivery that was handled before (here or, through Dedup,
+// in an earlier run), otherwise hands it to the engine and remembers it.
+// ok is false when there is nothing to post; a repeat that deserves a
+// notice returns the notice.
+func (f *Front) run(ctx context.Context, in inbound) (reply bot.Reply, ok bool) {
 	log := f.log.With("kind", in.kind, "message_id", in.req.MessageID, "user", in.req.UserID)
 	defer func() {
 		if p := recover(); p != nil {
 			log.Error("handling a Slack delivery panicked", "panic", fmt.Sprint(p))
+			ok = false
 		}
 	}()
-	notify := func(k dedupKey) {
+	notice := func(k dedupKey) (bot.Reply, bool) {
 		if k.notice == "" {
-			return
+			return bot.Reply{}, false
 		}
-		if err := f.deliver(ctx, in.to, bot.Reply{Lines: []string{k.notice}, Ephemeral: true}); err != nil {
-			log.Warn("could not post the repeat notice", "err", err)
-		}
+		return bot.Reply{Lines: []string{k.notice}, Ephemeral: true}, true
 	}
 	if k, ok := f.busy.claim(in.keys); !ok {
 		log.Info("dropped a copy of a delivery that is being handled", "key", k.id, "retry", in.retry)
-		notify(k)
-		return
+		return notice(k)
 	}
 	defer f.busy.release(in.keys)
 	for _, k := range in.keys {
@@ -272,25 +294,60 @@ func (f *Front) process(ctx context.Context, in inbound) {
 		}
 		if seen {
 			log.Info("dropped a delivery that was already handled", "key", k.id, "retry", in.retry)
-			notify(k)
-			return
+			return notice(k)
 		}
 	}
-	start := time.Now()
 	req := in.req
 	req.UserName = f.displayName(ctx, req.UserID, in.userName)
 	req = f.withFiles(ctx, in, req)
-	reply := WithDetails(f.cfg.Handler.Handle(ctx, req), req.Text)
+	reply = WithDetails(f.cfg.Handler.Handle(ctx, req), req.Text)
 	for _, k := range in.keys {
 		if err := f.cfg.Dedup.MarkSeen(ctx, k.id); err != nil {
 			log.Warn("could not record the delivery as handled", "key", k.id, "err", err)
 		}
 	}
+	return reply, true
+}
+
+// post sends a delivery's reply. A delivery replayed after a restart and
+// older than Slack's response window (a response_url lasts 30 minutes)
+// is answered in a direct message that says what was run.
+func (f *Front) post(ctx context.Context, in inbound, reply bot.Reply) {
+	log := f.log.With("kind", in.kind, "message_id", in.req.MessageID, "user", in.req.UserID)
+	if !in.receivedAt.IsZero() && in.req.UserID != "" && f.cfg.Clock.Now().Sub(in.receivedAt) > f.cfg.ResponseWindow {
+		if _, err := f.sendDirect(ctx, bot.Direct{UserID: in.req.UserID, Reply: lateReply(in, reply)}); err != nil {
+			log.Error("could not post the late reply", "err", err)
+		}
+		return
+	}
 	if err := f.deliver(ctx, in.to, reply); err != nil {
 		log.Error("could not post the reply", "err", err)
 		return
 	}
-	log.Debug("handled", "reply_kind", reply.Kind.String(), "took", time.Since(start))
+	log.Debug("handled", "reply_kind", reply.Kind.String())
+}
+
+// lateReply is the reply to a delivery run long after it was sent, for a
+// direct message: what was typed, when, and what came of it.
+func lateReply(in inbound, r bot.Reply) bot.Reply {
+	what := quoteInput(in.req.Text, maxQuotedRunes)
+	note := fmt.Sprintf("The bot restarted before answering what you sent at %s UTC; it has now run `%s`:",
+		in.receivedAt.UTC().Format("2006-01-02 15:04"), what)
+	r.Lines = append([]string{note}, r.Lines...)
+	r.Ephemeral = false
+	r.Actions = nil // buttons under a late answer would act on a stale context
+	return r
+}
+
+// forget deletes the delivery's stored copy once its work is done (a
+// writing command has already deleted it in its own transaction).
+func (f *Front) forget(ctx context.Context, in inbound) {
+	if in.inboxID == "" || f.cfg.Inbox == nil {
+		return
+	}
+	if err := f.cfg.Inbox.Done(context.WithoutCancel(ctx), in.inboxID); err != nil {
+		f.log.Warn("could not forget a handled delivery; it may run again at the next start", "inbox_id", in.inboxID, "err", err)
+	}
 }
 
 // displayName asks Users for the asker's name, falling back to the name

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"net/http"
+	"sync"
 	"time"
 
 	"github.com/slack-go/slack"
@@ -30,6 +31,10 @@ func (f *Front) serveSocket(ctx context.Context) error {
 	defer cancel()
 	runDone := make(chan error, 1)
 	go func() { runDone <- sm.RunContext(runCtx) }()
+	// Envelopes are stored and acknowledged by up to maxAccepting
+	// goroutines at once, so that their inbox writes share commits.
+	acc := &accepting{slots: make(chan struct{}, maxAccepting)}
+	defer acc.wg.Wait()
 	close(f.ready)
 
 	var fatal error
@@ -38,7 +43,7 @@ func (f *Front) serveSocket(ctx context.Context) error {
 		case ev := <-sm.Events:
 			// Always drain, also while stopping: a client whose events
 			// are not read stalls and reconnects in a loop.
-			if err := f.onSocketEvent(runCtx, sm, ev); err != nil && fatal == nil {
+			if err := f.onSocketEvent(runCtx, sm, acc, ev); err != nil && fatal == nil {
 				fatal = err
 				f.log.Error("stopping socket mode", "err", err)
 				cancel()
@@ -77,7 +82,7 @@ func socketFatal(apiURL string, err error) error {
 // event is left unacknowledged, so Slack delivers it again later, and a
 // slash command is acknowledged with a "busy" answer. A non-nil error is
 // fatal.
-func (f *Front) onSocketEvent(ctx context.Context, sm *socketmode.Client, ev socketmode.Event) error {
+func (f *Front) onSocketEvent(ctx context.Context, sm *socketmode.Client, acc *accepting, ev socketmode.Event) error {
 	retry := 0
 	if ev.Request != nil {
 		retry = ev.Request.RetryAttempt
@@ -109,7 +114,8 @@ func (f *Front) onSocketEvent(ctx context.Context, sm *socketmode.Client, ev soc
 			f.ack(ctx, sm, ev.Request, nil)
 			return nil
 		}
-		f.acceptEnvelope(ctx, sm, ev.Request, []inbound{in}, nil)
+		now := f.cfg.Clock.Now()
+		acc.run(func() { f.acceptEnvelope(ctx, sm, ev.Request, viaEvent, now, []inbound{in}, nil) })
 	case socketmode.EventTypeSlashCommand:
 		cmd, _ := ev.Data.(slack.SlashCommand)
 		if cmd.UserID == "" {
@@ -117,10 +123,14 @@ func (f *Front) onSocketEvent(ctx context.Context, sm *socketmode.Client, ev soc
 			return nil
 		}
 		busy := map[string]string{"response_type": slack.ResponseTypeEphemeral, "text": busyText}
-		f.acceptEnvelope(ctx, sm, ev.Request, []inbound{f.fromSlash(cmd, retry)}, busy)
+		now := f.cfg.Clock.Now()
+		work := []inbound{f.fromSlash(cmd, retry, now)}
+		acc.run(func() { f.acceptEnvelope(ctx, sm, ev.Request, viaCommandJSON, now, work, busy) })
 	case socketmode.EventTypeInteractive:
 		cb, _ := ev.Data.(slack.InteractionCallback)
-		f.acceptEnvelope(ctx, sm, ev.Request, f.fromAction(cb, retry), nil)
+		now := f.cfg.Clock.Now()
+		work := f.fromAction(cb, retry, now)
+		acc.run(func() { f.acceptEnvelope(ctx, sm, ev.Request, viaInteractive, now, work, nil) })
 	case socketmode.EventTypeErrorBadMessage:
 		if bm, ok := ev.Data.(*socketmode.ErrorBadMessage); ok {
 			// Acknowledge what we cannot read, or Slack sends it forever.
@@ -138,21 +148,43 @@ func (f *Front) onSocketEvent(ctx context.Context, sm *socketmode.Client, ev soc
 	return nil
 }
 
-// acceptEnvelope queues the work of one envelope and acknowledges it. If
-// the queue cannot take it all, a busy payload (if any) is sent as the
-// acknowledgement; without one the envelope stays unacknowledged and Slack
-// re-delivers it (what was queued is then dropped as a duplicate).
-func (f *Front) acceptEnvelope(ctx context.Context, sm *socketmode.Client, req *socketmode.Request, work []inbound, busy any) {
-	for _, in := range work {
-		if !f.pool.Load().offer(in) {
-			if busy != nil {
-				f.log.Warn("work queue full; told the asker to try again", "queue", f.cfg.QueueSize)
-				f.ack(ctx, sm, req, busy)
-				return
-			}
-			f.log.Warn("work queue full; leaving the envelope for Slack to deliver again", "queue", f.cfg.QueueSize)
+// maxAccepting bounds the envelopes being stored and acknowledged at once.
+const maxAccepting = 64
+
+// accepting runs the store-then-ack of envelopes beside the event loop,
+// which must keep draining.
+type accepting struct {
+	slots chan struct{}
+	wg    sync.WaitGroup
+}
+
+// run starts fn once a slot is free (the loop waits only when
+// maxAccepting envelopes are already being stored).
+func (a *accepting) run(fn func()) {
+	a.slots <- struct{}{}
+	a.wg.Go(func() {
+		defer func() { <-a.slots }()
+		fn()
+	})
+}
+
+// acceptEnvelope stores the envelope's work in the inbox, queues it, and
+// only then acknowledges it: what Slack was told we accepted is on disk.
+// A refusal (inbox or queue full, the store failing) sends the busy
+// payload, if any, as the acknowledgement; without one the envelope stays
+// unacknowledged and Slack delivers it again later.
+func (f *Front) acceptEnvelope(ctx context.Context, sm *socketmode.Client, req *socketmode.Request, via string, at time.Time, work []inbound, busy any) {
+	var payload []byte
+	if req != nil {
+		payload = req.Payload
+	}
+	if !f.accept(ctx, via, payload, at, work) {
+		if busy != nil {
+			f.ack(ctx, sm, req, busy)
 			return
 		}
+		f.log.Warn("leaving an envelope for Slack to deliver again")
+		return
 	}
 	f.ack(ctx, sm, req, nil)
 }

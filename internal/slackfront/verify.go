@@ -47,25 +47,11 @@ func Signature(signingSecret, timestamp string, body []byte) string {
 // cannot set). The timestamp must lie within 5 minutes of now either way,
 // which bounds replays; the comparison is constant-time.
 func verifySignature(h http.Header, body []byte, secret string, now time.Time) error {
-	sig, ts := h.Get(headerSignature), h.Get(headerTimestamp)
-	if sig == "" || ts == "" {
-		return errMissingHeaders
-	}
-	secs, err := strconv.ParseInt(ts, 10, 64)
+	got, err := checkHeaders(h, now)
 	if err != nil {
-		return errBadTimestamp
+		return err
 	}
-	if d := now.Sub(time.Unix(secs, 0)); d > maxClockSkew || d < -maxClockSkew {
-		return errStaleTimestamp
-	}
-	hexSig, ok := strings.CutPrefix(sig, "v0=")
-	if !ok {
-		return errBadSignature
-	}
-	got, err := hex.DecodeString(hexSig)
-	if err != nil || len(got) != sha256.Size {
-		return errBadSignature
-	}
+	ts := h.Get(headerTimestamp)
 	m := hmac.New(sha256.New, []byte(secret))
 	m.Write([]byte("v0:" + ts + ":"))
 	m.Write(body)
@@ -73,4 +59,31 @@ func verifySignature(h http.Header, body []byte, secret string, now time.Time) e
 		return errBadSignature
 	}
 	return nil
+}
+
+// checkHeaders checks what can be checked before the body is read: both
+// headers present, the timestamp a Unix time within 5 minutes of now, the
+// signature of the v0 form (64 hex digits). It returns the signature's
+// bytes. A request that fails here is refused with its body unread.
+func checkHeaders(h http.Header, now time.Time) ([]byte, error) {
+	sig, ts := h.Get(headerSignature), h.Get(headerTimestamp)
+	if sig == "" || ts == "" {
+		return nil, errMissingHeaders
+	}
+	secs, err := strconv.ParseInt(ts, 10, 64)
+	if err != nil {
+		return nil, errBadTimestamp
+	}
+	if d := now.Sub(time.Unix(secs, 0)); d > maxClockSkew || d < -maxClockSkew {
+		return nil, errStaleTimestamp
+	}
+	hexSig, ok := strings.CutPrefix(sig, "v0=")
+	if !ok {
+		return nil, errBadSignature
+	}
+	got, err := hex.DecodeString(hexSig)
+	if err != nil || len(got) != sha256.Size {
+		return nil, errBadSignature
+	}
+	return got, nil
 }
