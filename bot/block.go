@@ -57,6 +57,12 @@ func (e *Engine) handleBlock(ctx context.Context, req Request) Reply {
 	for i, l := range lines {
 		sub := req
 		sub.Text = l.text
+		if i < len(lines)-1 {
+			// Only the last line forgets the stored delivery: a crash
+			// part-way leaves it stored, and the replay reruns the block,
+			// where the lines already logged are known by their ids.
+			sub.InboxID = ""
+		}
 		if req.MessageID != "" {
 			sub.MessageID = fmt.Sprintf("%s#%d", req.MessageID, l.n)
 		}
