@@ -42,6 +42,7 @@ func allCommands() []command {
 		logCommands(),
 		calcCommands(),
 		digestCommands(),
+		chartCommands(),
 		roleCommands(),
 		planCommands(),
 		seasonCommands(),

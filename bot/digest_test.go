@@ -1,8 +1,10 @@
 package bot_test
 
 import (
+	"bytes"
 	"context"
 	"errors"
+	"fmt"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -144,10 +146,60 @@ func TestDigestLinesCarryUnits(t *testing.T) {
 	te := newTestEngine(t)
 	digestSquad(t, te)
 	r := te.must("digest now")
-	// The totals leave the private Ines out, while the preview's table shows her.
+	// The totals and the channel's table both leave the private Ines out.
 	contains(t, r, "1 athlete jumped: 6 attempts, 2 cleared, make rate 33% (not counting 1 private athlete).")
-	contains(t, r, "Mira 1.65 m season best (meet)", "Ceiling (highest bar made on at least half its tries, 8 weeks): Ines 1.50 m, Mira 1.65 m.")
+	contains(t, r, "Mira 1.65 m season best (meet)", "Ceiling (highest bar made on at least half its tries, 8 weeks): Mira 1.65 m.")
 	te.must("team units imperial")
 	// 1.65 m = 64.96 in, 5-5 to the inch (1 in = 0.0254 m, NIST Handbook 44).
-	contains(t, te.must("digest now"), "Mira 5-5 season best (meet)", "Ines 4-11, Mira 5-5.")
+	contains(t, te.must("digest now"), "Mira 5-5 season best (meet)", "weeks): Mira 5-5.")
+}
+
+// TestDigestPreviewIsTheChannelPost: a coach's `digest week` shows exactly
+// what PostDigest sends to the channel (lines, table, notes, chart bytes),
+// then the private part under its mark; the channel's count line and table
+// count the same athletes.
+func TestDigestPreviewIsTheChannelPost(t *testing.T) {
+	te := newTestEngine(t)
+	digestSquad(t, te)
+	te.must("athlete add Ren height 1.80 sex m private yes")
+	te.must("log Kai 1.90 o 1.95 xo")
+	te.must("log Ren 1.80 o")
+	smallCharts(t, te)
+	var posted bot.Reply
+	post := func(_ context.Context, _ string, r bot.Reply) error { posted = r; return nil }
+	if ok, err := te.E.PostDigest(context.Background(), digest.Week{Year: 2026, Num: 48}, time.Now(), false, post); !ok || err != nil {
+		t.Fatalf("post: %v %v", ok, err)
+	}
+	prev := te.as("U_COACH", "digest week 2026-W48")
+	if strings.Join(prev.Lines, "\n") != strings.Join(posted.Lines, "\n") {
+		t.Errorf("preview lines\n%q\nchannel lines\n%q", prev.Lines, posted.Lines)
+	}
+	if fmt.Sprint(prev.Table) != fmt.Sprint(posted.Table) {
+		t.Errorf("preview table %v, channel table %v", prev.Table, posted.Table)
+	}
+	wantNotes := append(append([]string{}, posted.Notes...), "! "+posted.Caution)
+	if len(prev.Notes) <= len(wantNotes) || strings.Join(prev.Notes[:len(wantNotes)], "\n") != strings.Join(wantNotes, "\n") {
+		t.Fatalf("preview notes do not start with the channel's:\n%q\n%q", prev.Notes, wantNotes)
+	}
+	rest := strings.Join(prev.Notes[len(wantNotes):], "\n")
+	if !strings.HasPrefix(rest, "── Private") || !strings.Contains(rest, "Ines") || !strings.Contains(rest, "Ren") {
+		t.Errorf("private part missing or unmarked:\n%s", rest)
+	}
+	if len(prev.Files) != 1 || len(posted.Files) != 1 || !bytes.Equal(prev.Files[0].Data, posted.Files[0].Data) {
+		t.Errorf("preview chart differs from the channel's")
+	}
+	// Counts and table agree: 2 non-private athletes jumped, 2 rows, no private name.
+	contains(t, posted, "2 athletes jumped", "(not counting 2 private athletes)")
+	if n := len(posted.Table.Rows); n != 2 {
+		t.Errorf("channel table has %d rows for 2 athletes counted: %v", n, posted.Table.Rows)
+	}
+	for _, row := range posted.Table.Rows {
+		if row[0] == "Ines" || row[0] == "Ren" {
+			t.Errorf("private athlete %s in the channel table", row[0])
+		}
+	}
+	// An athlete's preview is the channel part only.
+	if p := plain(te.as("U_INES", "digest week 2026-W48")); strings.Contains(p, "── Private") {
+		t.Errorf("athlete saw the private part:\n%s", p)
+	}
 }

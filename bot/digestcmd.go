@@ -4,7 +4,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"math"
 	"strings"
 	"time"
 
@@ -183,20 +182,57 @@ func runDigestWeek(c *call) (Reply, error) {
 	return r, err
 }
 
-// digestPreview renders a digest for the asker only. Coaches see every
-// athlete in full; athletes see what the team channel would show.
+// privateMark heads the part of a coach's preview that the channel never
+// sees.
+const privateMark = "── Private: to coaches only, never posted in the channel ──"
+
+// digestPreview renders a digest for the asker only. It shows exactly what
+// the channel would get (the same lines, table, notes and chart, its caution
+// folded in as the last note so that the channel part stays together); for a
+// coach, what goes out privately follows under privateMark: each private
+// athlete's direct message and the week's take-off counts.
 func (c *call) digestPreview(tx Tx, t record.Team, d digest.Digest) (Reply, error) {
-	full := rank(c.user.Role) >= rank(record.RoleCoach)
-	r, err := renderDigest(tx, t, d, full)
-	if err == nil && full {
-		var ls []string
-		if ls, err = loadNotes(tx, d.Week, t.Location()); err == nil {
-			r.Notes = append(r.Notes, ls...)
-		}
+	r, err := renderDigest(tx, t, d, c.e.chartOptions(t))
+	if err != nil {
+		return r, err
+	}
+	if r.Caution != "" {
+		r.Notes = append(r.Notes, "! "+r.Caution)
+		r.Caution = ""
 	}
 	r.Ephemeral = true
 	r.Direct = nil // a preview sends nothing to anyone else
-	return r, err
+	if rank(c.user.Role) < rank(record.RoleCoach) {
+		return r, nil
+	}
+	priv, err := privatePart(tx, t, d)
+	if err != nil {
+		return r, err
+	}
+	if len(priv) > 0 {
+		r.Notes = append(r.Notes, privateMark)
+		r.Notes = append(r.Notes, priv...)
+	}
+	return r, nil
+}
+
+// privatePart is the coach-only text of a preview: what each private
+// athlete's direct message says (sent to the athlete's linked chat users
+// and to the coaches) and the week's take-off counts.
+func privatePart(tx Tx, t record.Team, d digest.Digest) ([]string, error) {
+	var out []string
+	for _, s := range d.PrivateSummaries() {
+		lines := strings.Split(strings.TrimRight(s.Text(imperial(t)), "\n"), "\n")
+		out = append(out, lines[0]+" (direct message):")
+		for _, l := range lines[1:] {
+			out = append(out, "  "+l)
+		}
+	}
+	ls, err := loadNotes(tx, d.Week, t.Location())
+	if err != nil {
+		return nil, err
+	}
+	return append(out, ls...), nil
 }
 
 // buildDigest streams the trend window's attempts of every athlete into a
@@ -221,15 +257,13 @@ func buildDigest(tx Tx, week digest.Week, loc *time.Location) (digest.Digest, er
 	return b.Result(), nil
 }
 
-// renderDigest turns a digest into a reply with a summary table, notes, the
-// chart and, for the channel (full == false), direct messages carrying the
-// private athletes' details to them and to the coaches.
-func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, error) {
+// renderDigest turns a digest into the channel's reply: a count line and a
+// summary table over the same athletes (the non-private ones who jumped),
+// notes, the chart, and direct messages carrying the private athletes'
+// details to them and to the coaches.
+func renderDigest(tx Tx, t record.Team, d digest.Digest, opts digest.ChartOptions) (Reply, error) {
 	imp := imperial(t)
-	shown := d
-	if !full {
-		shown = d.Redacted()
-	}
+	shown := d.Redacted()
 	title := "Clearance digest " + d.Week.String()
 	if t.Name != "" {
 		title += ": " + t.Name
@@ -252,10 +286,10 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 		}
 		r.Lines = append(r.Lines, line+".")
 	}
-	table := &Table{Header: []string{"athlete", "O-X", "make", "best", "coach", "model", "trend/wk"}}
+	table := &Table{Header: []string{"athlete", "O-X", "make", "best", "coach", "model", "trend"}}
 	var bests, ceilings, private []string
 	for _, a := range shown.Athletes {
-		if a.Private && !full {
+		if a.Private {
 			private = append(private, a.Name)
 			continue
 		}
@@ -286,7 +320,7 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 	if len(ceilings) > 0 {
 		r.Notes = append(r.Notes, fmt.Sprintf("Ceiling (highest bar made on at least half its tries, %d weeks): %s.", len(d.TrendWeeks), strings.Join(ceilings, ", ")))
 	}
-	if kn, err := knockNote(tx, shown, loc, full); err != nil {
+	if kn, err := knockNote(tx, shown, loc, false); err != nil {
 		return r, err
 	} else if kn != "" {
 		r.Notes = append(r.Notes, kn)
@@ -297,9 +331,10 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 	if len(private) > 0 {
 		r.Notes = append(r.Notes, strings.Join(private, ", ")+": details sent privately.")
 	}
-	r.Notes = append(r.Notes, "O-X: clearances-failures. make: O/(O+X). PB, SB: personal or season best at a meet; >PB: above the personal best in practice. coach, model: median clearance margin (coach's estimate; mechanics model). trend: fitted change of the weekly best bar, shown only with 4 or more weekly points.")
+	r.Notes = append(r.Notes, "O-X: clearances-failures. make: O/(O+X). PB, SB: personal or season best at a meet; >PB: above the personal best in practice. coach, model: median clearance margin (coach's estimate; mechanics model).")
+	r.Notes = append(r.Notes, strings.ToUpper(digest.TrendRule[:1])+digest.TrendRule[1:]+" (common practice).")
 	r.Caution = "Trends over a few weeks are a hint, not a verdict; progressions and training load are the coach's call."
-	png, err := digest.Chart(shown, digest.ChartOptions{Imperial: imp, Team: t.Name})
+	png, err := digest.Chart(shown, opts)
 	switch {
 	case err == nil:
 		r.Files = append(r.Files, File{Name: "lathmark-digest-" + d.Week.String() + ".png", MIME: "image/png", Title: title, Data: png})
@@ -307,13 +342,11 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, full bool) (Reply, erro
 	default:
 		return r, fmt.Errorf("digest chart: %w", err)
 	}
-	if !full {
-		ds, err := privateDirects(tx, d, imp)
-		if err != nil {
-			return r, err
-		}
-		r.Direct = ds
+	ds, err := privateDirects(tx, d, imp)
+	if err != nil {
+		return r, err
 	}
+	r.Direct = ds
 	return r, nil
 }
 
@@ -352,16 +385,12 @@ func meetBestOf(a digest.AthleteWeek) float64 {
 	return 0
 }
 
-// trendCell shows a trend's reading and slope, or why there is none.
+// trendCell shows a trend's reading and slope ± SE, or why there is none.
 func trendCell(t digest.Trend, imp bool) string {
 	if t.Reading == digest.NotEnoughData {
 		return fmt.Sprintf("(%d wk)", t.Points)
 	}
-	slope := units.Small(math.Round(t.SlopeCMPerWeek*10)/1000, imp)
-	if strings.HasPrefix(slope, "-0.0 ") {
-		slope = "+0.0" + strings.TrimPrefix(slope, "-0.0")
-	}
-	return t.Reading.String() + " " + slope
+	return t.Reading.String() + " " + t.Slope(imp)
 }
 
 // privateDirects addresses each private athlete's details to the chat users
@@ -560,7 +589,7 @@ func (e *Engine) PostDigest(ctx context.Context, week digest.Week, scheduledAt t
 		if err != nil {
 			return err
 		}
-		r, err = renderDigest(tx, team, d, false)
+		r, err = renderDigest(tx, team, d, e.chartOptions(team))
 		return err
 	})
 	if err == nil {

@@ -26,6 +26,9 @@ type Config struct {
 	// Directory lists the workspace's people for `role ROLE NAME`; nil
 	// (the terminal) resolves names among the known users.
 	Directory Directory
+	// ChartWidthPx is the width of the charts in replies and digests, in
+	// pixels (height 5:4); 0 means 1080, a phone screen's width.
+	ChartWidthPx int
 }
 
 // Engine parses and runs commands. It is safe for concurrent use: all state
@@ -37,6 +40,7 @@ type Engine struct {
 	log         *slog.Logger
 	onTeam      func(record.Team)
 	directory   Directory
+	chartW      int // chart width in px; 0 = the digest package's default
 	commands    []command
 	names       []commandName
 	firstWords  []string
@@ -48,6 +52,12 @@ func New(cfg Config) (*Engine, error) {
 		return nil, errors.New("bot: no store")
 	}
 	e := &Engine{store: cfg.Store, clock: cfg.Clock, headCoaches: slices.Clone(cfg.HeadCoaches), log: cfg.Logger, onTeam: cfg.OnTeamChange, directory: cfg.Directory}
+	if cfg.ChartWidthPx != 0 {
+		if cfg.ChartWidthPx < 200 || cfg.ChartWidthPx > 3200 {
+			return nil, fmt.Errorf("bot: chart width %d px (want 200 to 3200)", cfg.ChartWidthPx)
+		}
+		e.chartW = cfg.ChartWidthPx
+	}
 	if e.clock == nil {
 		e.clock = ClockFunc(time.Now)
 	}

@@ -135,7 +135,7 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 	for _, g := range ln.Groups {
 		for _, j := range g.Jumps {
 			add = append(add, record.Attempt{
-				AthleteID: ath.ID, Time: c.now, BarM: g.BarM, Outcome: j.Outcome, Meet: ln.Meet,
+				AthleteID: ath.ID, Time: c.now, BarM: g.BarM, BarDecimals: units.MetreDecimals(g.Word, g.BarM), Outcome: j.Outcome, Meet: ln.Meet,
 				ApproachMS: j.Meas.ApproachMS, TakeoffDistM: j.Meas.TakeoffDistM, PeakM: j.Meas.PeakM, VzMS: j.Meas.VzMS,
 				HasCoachMargin: j.Meas.HasCoachMargin, CoachMarginM: j.Meas.CoachMarginM,
 				Knock: j.Knock, Short: ln.Short,
@@ -189,7 +189,8 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 	if err := c.audit(tx, auditLog, ath.Name, nil, logged); err != nil {
 		return Reply{}, err
 	}
-	return logReply(ath, ln, jumps, today, sameKind, add, bestLines, warnings, notes, imp), nil
+	r := logReply(ath, ln, jumps, today, sameKind, add, bestLines, warnings, notes, imp)
+	return c.quietHint(tx, r, hintMeasures, measuresHintPrefix), nil
 }
 
 // logReply is what the coach sees after a log line.
@@ -264,7 +265,7 @@ func logReply(ath record.Athlete, ln logLine, jumps []loggedJump, today, sameKin
 		}
 	}
 	if len(measured) > 0 {
-		r.Lines = append(r.Lines, "Measurements go with the jump written just before them: "+strings.Join(measured, "; ")+".")
+		r.Lines = append(r.Lines, measuresHintPrefix+": "+strings.Join(measured, "; ")+".")
 	}
 	if ln.Note != "" {
 		r.Fields = append(r.Fields, Field{Label: "Note", Value: ln.Note})

@@ -20,9 +20,10 @@ import (
 )
 
 // The CSV form of attempts, one row each, RFC 4180 as encoding/csv writes
-// it. Times are RFC 3339 (ISO 8601) with the team's offset and full
-// precision; lengths in metres, speeds in m/s, empty cells for values not
-// measured. The columns, in export order:
+// it. Times are RFC 3339 (ISO 8601) to the second with the team's offset;
+// the bar in metres to the precision it was typed with (1.80, 1.785, or the
+// exact metres of feet-inches), other lengths in metres, speeds in m/s,
+// empty cells for values not measured. The columns, in export order:
 //
 //	athlete, time, bar_m, outcome, attempt, meet, approach_ms, takeoff_m,
 //	peak_m, vz_ms, coach_margin_m, model_margin_m, logged_by, message_id, note
@@ -69,6 +70,21 @@ func csvUnguard(s string) string {
 // csvNum writes a number exactly (shortest form that reads back the same).
 func csvNum(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
 
+// csvClock writes an attempt's time to the second with the team's offset,
+// RFC 3339 ("2026-11-25T18:30:05+01:00"), the form spreadsheets read.
+func csvClock(t time.Time, loc *time.Location) string {
+	return t.In(loc).Truncate(time.Second).Format(time.RFC3339)
+}
+
+// csvBar writes the bar in metres to the precision it was typed with
+// ("1.80", "1.785", "1.63195" for 5-4¼), or exactly when not known.
+func csvBar(a record.Attempt) string {
+	if a.BarDecimals > 0 {
+		return strconv.FormatFloat(a.BarM, 'f', a.BarDecimals, 64)
+	}
+	return csvNum(a.BarM)
+}
+
 // csvOptional writes a measurement, empty when not given.
 func csvOptional(v float64) string {
 	if v == 0 {
@@ -94,7 +110,7 @@ func writeAttemptsCSV(w io.Writer, names map[uint64]string, as []record.Attempt,
 		if a.Number > 0 {
 			number = strconv.Itoa(a.Number)
 		}
-		row := []string{csvGuard(names[a.AthleteID]), a.Time.In(loc).Format(time.RFC3339Nano), csvNum(a.BarM), a.Outcome.String(),
+		row := []string{csvGuard(names[a.AthleteID]), csvClock(a.Time, loc), csvBar(a), a.Outcome.String(),
 			number, strconv.FormatBool(a.Meet), csvOptional(a.ApproachMS), csvOptional(a.TakeoffDistM), csvOptional(a.PeakM),
 			csvOptional(a.VzMS), coach, model, csvGuard(a.LoggedBy), csvGuard(a.MessageID), csvGuard(a.Note)}
 		if err := cw.Write(row); err != nil {
@@ -369,6 +385,9 @@ func parseCSVRecord(n int, rec []string, col map[string]int, now time.Time, loc 
 		bad("bar_m %q is not a bar height in metres within %s", short(bs), barRangeText())
 	} else {
 		row.a.BarM = bar
+		if _, frac, ok := strings.Cut(bs, "."); ok {
+			row.a.BarDecimals = len(frac)
+		}
 	}
 	oc := cell("outcome")
 	if outs, ok := notationWord(strings.ToLower(oc)); ok && len(outs) == 1 {
@@ -789,7 +808,11 @@ type csvSame struct {
 // athlete and time, same bar and outcome.
 func storedSame(tx Tx, a record.Attempt) (bool, error) {
 	found := false
-	err := tx.Attempts(a.AthleteID, a.Time, a.Time.Add(time.Nanosecond), func(s record.Attempt) error {
+	to := a.Time.Add(time.Nanosecond)
+	if a.Time.Nanosecond() == 0 {
+		to = a.Time.Add(time.Second) // an export writes times to the second
+	}
+	err := tx.Attempts(a.AthleteID, a.Time, to, func(s record.Attempt) error {
 		if sameBar(s.BarM, a.BarM) && s.Outcome == a.Outcome && (a.Number == 0 || s.Number == a.Number) {
 			found = true
 			return record.ErrStop

@@ -100,13 +100,15 @@ func TestExportCSV(t *testing.T) {
 		t.Errorf("an athlete exported someone else: %s", plain(r))
 	}
 
-	// Times carry the team's offset: Madrid is UTC+1 in November.
+	// Times carry the team's offset to the second (RFC 3339): Madrid is UTC+1 in
+	// November (EU summer time ends the last Sunday of October, Directive
+	// 2000/84/EC). The bar keeps the precision it was typed with: 1.70.
 	if _, err := time.LoadLocation("Europe/Madrid"); err != nil {
 		t.Skip("no time zone data:", err)
 	}
 	logSetTeam(t, te.DB, record.Team{TZ: "Europe/Madrid"})
 	m := te.must("export csv Mira since 2026-11-20")
-	if !strings.Contains(string(m.Files[0].Data), "Mira,2026-11-20T19:00:01+01:00,1.7,o,1,false") {
+	if !strings.Contains(string(m.Files[0].Data), "Mira,2026-11-20T19:00:01+01:00,1.70,o,1,false") {
 		t.Errorf("Madrid export:\n%s", m.Files[0].Data)
 	}
 }

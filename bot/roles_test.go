@@ -78,6 +78,8 @@ func TestRoleMatrix(t *testing.T) {
 		{"com for Kai model segments", staff},
 		{"athletes", members},
 		{"athlete Mira", self},
+		{"chart Mira", self},
+		{"chart Kai", staff},
 		{"athlete Kai", staff},
 		{"athlete add Zed height 1.80", staff},
 		{"athlete set Kai pb 2.02", staff},

@@ -77,6 +77,11 @@ type Tx interface {
 	// UnmarkDigestPosted releases a week claimed by MarkDigestPosted whose
 	// post finally failed.
 	UnmarkDigestPosted(week string) error
+
+	// HintShown reports when a hint was last shown to a chat user;
+	// MarkHintShown records it (see hintDue).
+	HintShown(user, hint string) (at time.Time, ok bool, err error)
+	MarkHintShown(user, hint string, at time.Time) error
 }
 
 // Clock tells the time; tests pass a fixed or stepping clock.

@@ -198,6 +198,14 @@ func openWith(path string, opts Options, ms map[uint64]migration, target uint64)
 		_ = bdb.Close()
 		return nil, fmt.Errorf("store: open %s: create inbox: %w", path, err)
 	}
+	if err := db.ensureHints(); err != nil {
+		_ = bdb.Close()
+		return nil, fmt.Errorf("store: open %s: create hints: %w", path, err)
+	}
+	if err := db.backfillChartStyles(); err != nil {
+		_ = bdb.Close()
+		return nil, fmt.Errorf("store: open %s: chart styles: %w", path, err)
+	}
 	return db, nil
 }
 

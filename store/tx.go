@@ -210,6 +210,13 @@ func (t *Tx) putAthlete(a *record.Athlete) error {
 		if id, err = athletes.NextSequence(); err != nil {
 			return fmt.Errorf("next id: %w", err)
 		}
+		if a.ChartStyle == 0 {
+			used, err := usedChartStyles(athletes)
+			if err != nil {
+				return fmt.Errorf("chart styles: %w", err)
+			}
+			a.ChartStyle = record.FreeChartStyle(used)
+		}
 	} else {
 		old, ok, err := getAthlete(athletes, id)
 		if err != nil {
@@ -217,6 +224,9 @@ func (t *Tx) putAthlete(a *record.Athlete) error {
 		}
 		if !ok {
 			return fmt.Errorf("id %d: %w", id, ErrNoAthlete)
+		}
+		if a.ChartStyle == 0 {
+			a.ChartStyle = old.ChartStyle // a style, once chosen, stays
 		}
 		if oldKey := foldName(old.Name); oldKey != key {
 			if err := names.Delete([]byte(oldKey)); err != nil {
@@ -614,6 +624,9 @@ func (t *Tx) DeleteUser(id string) error {
 	b, err := t.bucket(bucketUsers)
 	if err == nil && id != "" {
 		err = b.Delete([]byte(id))
+	}
+	if err == nil {
+		err = t.deleteHints(id)
 	}
 	if err != nil {
 		return fmt.Errorf("store: delete user %q: %w", id, err)

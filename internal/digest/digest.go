@@ -86,6 +86,8 @@ type weekAgg struct {
 	bestM                             float64 // highest bar cleared
 	hasMeetBest                       bool
 	meetBestM                         float64 // highest bar cleared at a meet
+	hasPracticeBest                   bool
+	practiceBestM                     float64 // highest bar cleared in practice
 	coach, model                      []float64
 }
 
@@ -179,6 +181,9 @@ func (b *Builder) Add(a record.Attempt) error {
 		if a.Meet && (!w.hasMeetBest || a.BarM > w.meetBestM) {
 			w.hasMeetBest, w.meetBestM = true, a.BarM
 		}
+		if !a.Meet && (!w.hasPracticeBest || a.BarM > w.practiceBestM) {
+			w.hasPracticeBest, w.practiceBestM = true, a.BarM
+		}
 	} else {
 		w.failed++
 		bc.failed++
@@ -200,7 +205,11 @@ type Digest struct {
 	Athletes []AthleteWeek
 	// Idle lists, by name, the non-private athletes with no attempts in Week.
 	Idle []string
-	Team TeamTotals
+	// Resting holds the entries of the athletes in Idle, in the same order:
+	// they may have jumped earlier in the trend window, and charts keep them
+	// in the legend, greyed.
+	Resting []AthleteWeek
+	Team    TeamTotals
 	// Unmatched counts window attempts whose athlete was never added.
 	Unmatched int
 }
@@ -254,6 +263,8 @@ type WeekStat struct {
 	BestM                    float64 // highest bar cleared, m
 	HasMeetBest              bool
 	MeetBestM                float64 // highest bar cleared at a meet, m
+	HasPracticeBest          bool
+	PracticeBestM            float64 // highest bar cleared in practice, m
 	CoachMargin, ModelMargin MarginStat
 	MakeRate                 Rate
 }
@@ -263,6 +274,9 @@ type AthleteWeek struct {
 	AthleteID uint64
 	Name      string
 	Private   bool // show only "details sent privately" in the channel
+	// ChartStyle is the profile's fixed colour-and-marker slot
+	// (record.Athlete.ChartStyle; 0 = none stored, charts fall back to the order drawn).
+	ChartStyle int
 
 	// The digest week.
 	Sessions   int // distinct local days with attempts
@@ -334,7 +348,7 @@ func (b *Builder) Result() Digest {
 			d.Team.PrivateExcluded++
 		}
 		if !jumped && !a.Private {
-			d.Idle = append(d.Idle, a.Name)
+			d.Resting = append(d.Resting, b.athleteWeek(a, ag))
 			continue
 		}
 		aw := b.athleteWeek(a, ag)
@@ -352,15 +366,18 @@ func (b *Builder) Result() Digest {
 	slices.SortFunc(d.Athletes, func(x, y AthleteWeek) int {
 		return cmp.Or(cmp.Compare(strings.ToLower(x.Name), strings.ToLower(y.Name)), cmp.Compare(x.AthleteID, y.AthleteID))
 	})
-	slices.SortFunc(d.Idle, func(x, y string) int {
-		return cmp.Or(cmp.Compare(strings.ToLower(x), strings.ToLower(y)), cmp.Compare(x, y))
+	slices.SortFunc(d.Resting, func(x, y AthleteWeek) int {
+		return cmp.Or(cmp.Compare(strings.ToLower(x.Name), strings.ToLower(y.Name)), cmp.Compare(x.Name, y.Name), cmp.Compare(x.AthleteID, y.AthleteID))
 	})
+	for _, a := range d.Resting {
+		d.Idle = append(d.Idle, a.Name)
+	}
 	return d
 }
 
 // athleteWeek builds one entry; ag is nil for an athlete with no window attempts.
 func (b *Builder) athleteWeek(a record.Athlete, ag *athleteAgg) AthleteWeek {
-	aw := AthleteWeek{AthleteID: a.ID, Name: a.Name, Private: a.Private, SeasonFrom: b.week}
+	aw := AthleteWeek{AthleteID: a.ID, Name: a.Name, Private: a.Private, ChartStyle: a.ChartStyle, SeasonFrom: b.week}
 	aw.Weeks = make([]WeekStat, b.n)
 	var bestX, bestY, coachX, coachY, modelX, modelY []float64
 	for i := range aw.Weeks {
@@ -371,6 +388,7 @@ func (b *Builder) athleteWeek(a record.Athlete, ag *athleteAgg) AthleteWeek {
 			ws.Attempts, ws.Cleared, ws.Failed, ws.Passed = w.attempts, w.cleared, w.failed, w.passed
 			ws.HasBest, ws.BestM = w.hasBest, w.bestM
 			ws.HasMeetBest, ws.MeetBestM = w.hasMeetBest, w.meetBestM
+			ws.HasPracticeBest, ws.PracticeBestM = w.hasPracticeBest, w.practiceBestM
 			ws.CoachMargin = marginStat(w.coach)
 			ws.ModelMargin = marginStat(w.model)
 			ws.MakeRate = Rate{Cleared: w.cleared, Tried: w.cleared + w.failed}

@@ -93,12 +93,12 @@ func (a AthleteWeek) Lines(imperial bool) []string {
 		}
 	}
 	n := len(a.Weeks)
-	ls = append(ls, fmt.Sprintf("Best-bar trend, last %d weeks: %s", n, a.BestTrend.Text()))
+	ls = append(ls, fmt.Sprintf("Best-bar trend, last %d weeks: %s", n, a.BestTrend.Text(imperial)))
 	if a.CoachMarginTrend.Points > 0 {
-		ls = append(ls, fmt.Sprintf("Margin trend (coach estimate): %s", a.CoachMarginTrend.Text()))
+		ls = append(ls, fmt.Sprintf("Margin trend (coach estimate): %s", a.CoachMarginTrend.Text(imperial)))
 	}
 	if a.ModelMarginTrend.Points > 0 {
-		ls = append(ls, fmt.Sprintf("Margin trend (model): %s", a.ModelMarginTrend.Text()))
+		ls = append(ls, fmt.Sprintf("Margin trend (model): %s", a.ModelMarginTrend.Text(imperial)))
 	}
 	if a.Ceiling.OK {
 		ls = append(ls, fmt.Sprintf("Ceiling (highest bar made on at least half its tries, %d weeks): %s (O %d, X %d)",

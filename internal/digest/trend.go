@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strconv"
 
 	"gonum.org/v1/gonum/stat"
 )
@@ -39,15 +40,22 @@ func (r Reading) String() string {
 	}
 }
 
+// TrendSEFactor is how many standard errors the slope must exceed to read
+// as rising or falling.
+const TrendSEFactor = 2
+
+// TrendRule states the reading rule in one line, for a digest's legend.
+const TrendRule = "trend: fitted weekly change of the best bar ± its standard error; rising or falling when |slope| > 2·SE, else flat; needs 4 or more weekly points"
+
 // Trend is an ordinary least-squares line y = a + b·x through weekly values,
 // x in weeks (0 = the oldest week of the trend window), y in centimetres.
 //
 // Reading rule: with fewer than MinTrendPoints (4) weekly points the reading
 // is NotEnoughData. Otherwise the slope b is Rising (b > 0) or Falling (b < 0)
-// when |b| > SE(b), its standard error, and Flat when |b| ≤ SE(b). |b| > SE(b)
-// is a t-ratio above 1: a deliberately lenient, plain-language hint that the
-// line is more than noise, not a significance test; with four to eight
-// points a t-ratio of 1 is well short of conventional 5 % significance.
+// when |b| > 2·SE(b), its standard error, and Flat when |b| ≤ 2·SE(b). A
+// t-ratio above 2 is the usual rough cut for "the slope is more than noise"
+// (common practice: about the 95 % level for many degrees of freedom; with
+// four to eight points it is somewhat more lenient than a t-test at 5 %).
 type Trend struct {
 	Points          int     // weekly values the line rests on
 	SlopeCMPerWeek  float64 // b, cm/week; meaningful when Points ≥ 2
@@ -56,13 +64,32 @@ type Trend struct {
 	Reading         Reading
 }
 
-// Text reads the trend in plain words, e.g. "rising 1.5 cm/week ± 0.4 (6 weeks)"
+// Slope writes the slope with its standard error, "+0.6 ± 0.4 cm/wk" (or
+// in/wk), negatives with a leading minus sign (U+2212).
+func (t Trend) Slope(imperial bool) string {
+	b, se, unit := t.SlopeCMPerWeek, t.StdErrCMPerWeek, "cm/wk"
+	if imperial {
+		b, se, unit = b/100/MetresPerInch, se/100/MetresPerInch, "in/wk"
+	}
+	return signedOne(b) + " ± " + strconv.FormatFloat(se, 'f', 1, 64) + " " + unit
+}
+
+// signedOne writes v to one decimal with its sign, "+0.6", "−1.2", "+0.0".
+func signedOne(v float64) string {
+	s := strconv.FormatFloat(math.Abs(v), 'f', 1, 64)
+	if v < 0 && s != "0.0" {
+		return "−" + s
+	}
+	return "+" + s
+}
+
+// Text reads the trend in plain words, e.g. "rising +1.5 ± 0.4 cm/wk (6 weeks)"
 // or "not enough data (3 weeks)".
-func (t Trend) Text() string {
+func (t Trend) Text(imperial bool) string {
 	if t.Reading == NotEnoughData {
 		return fmt.Sprintf("not enough data (%d %s)", t.Points, plural(t.Points, "week", "weeks"))
 	}
-	return fmt.Sprintf("%s %+.1f cm/week ± %.1f (%d weeks)", t.Reading, t.SlopeCMPerWeek, t.StdErrCMPerWeek, t.Points)
+	return fmt.Sprintf("%s %s (%d weeks)", t.Reading, t.Slope(imperial), t.Points)
 }
 
 // errFewPoints reports a fit asked of fewer than two points.
@@ -116,7 +143,7 @@ func trendOf(xs, ys []float64) Trend {
 		return t
 	}
 	switch {
-	case math.Abs(l.slope) <= l.stdErr:
+	case math.Abs(l.slope) <= TrendSEFactor*l.stdErr:
 		t.Reading = Flat
 	case l.slope > 0:
 		t.Reading = Rising

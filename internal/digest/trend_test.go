@@ -4,6 +4,8 @@ import (
 	"errors"
 	"math"
 	"testing"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // Anscombe F.J. (1973), Graphs in statistical analysis, The American
@@ -89,22 +91,28 @@ func TestTrendReading(t *testing.T) {
 		{"one week", []float64{7}, []float64{200}, NotEnoughData, "not enough data (1 week)"},
 		{"three weeks rising", []float64{0, 1, 2}, []float64{190, 192, 194}, NotEnoughData, "not enough data (3 weeks)"},
 		// Exactly on a line: SE = 0 < |b| = 2.
-		{"four weeks rising", []float64{0, 1, 2, 3}, []float64{190, 192, 194, 196}, Rising, "rising +2.0 cm/week ± 0.0 (4 weeks)"},
-		{"four weeks falling", []float64{0, 2, 5, 7}, []float64{200, 199, 197.5, 196.5}, Falling, "falling -0.5 cm/week ± 0.0 (4 weeks)"},
+		{"four weeks rising", []float64{0, 1, 2, 3}, []float64{190, 192, 194, 196}, Rising, "rising +2.0 ± 0.0 cm/wk (4 weeks)"},
+		{"four weeks falling", []float64{0, 2, 5, 7}, []float64{200, 199, 197.5, 196.5}, Falling, "falling −0.5 ± 0.0 cm/wk (4 weeks)"},
 		// b = 0 ≤ SE: flat.
 		{"zig-zag", []float64{0, 1, 2, 3}, []float64{190, 194, 194, 190}, Flat, ""},
 		// By hand: x̄ = 1.5, ȳ = 191.5, Sxy = (−1.5)(−1.5) + (−0.5)(2.5) + (0.5)(−1.5) + (1.5)(0.5) = 1,
 		// Sxx = 5, b = 0.2, a = 191.2; residuals −1.2, 2.6, −1.6, 0.2, Σr² = 10.8,
 		// SE = √(10.8/2/5) = 1.04 > 0.2: flat.
-		{"noisy", []float64{0, 1, 2, 3}, []float64{190, 194, 190, 192}, Flat, "flat +0.2 cm/week ± 1.0 (4 weeks)"},
+		{"noisy", []float64{0, 1, 2, 3}, []float64{190, 194, 190, 192}, Flat, "flat +0.2 ± 1.0 cm/wk (4 weeks)"},
+		// By hand: Sxy = 4, Sxx = 5, b = 0.8, a = 190.3; residuals −0.3, 0.9, −0.9, 0.3,
+		// Σr² = 1.8, SE = √(1.8/2/5) = 0.424: |b| = 1.9·SE, above one SE but not two: flat.
+		{"between one and two SE", []float64{0, 1, 2, 3}, []float64{190, 192, 191, 193}, Flat, "flat +0.8 ± 0.4 cm/wk (4 weeks)"},
+		// By hand: Sxy = 8, Sxx = 5, b = 1.6, a = 190.1; residuals −0.1, 0.3, −0.3, 0.1,
+		// Σr² = 0.2, SE = √(0.2/2/5) = 0.141: |b| = 11·SE: rising.
+		{"clearly rising", []float64{0, 1, 2, 3}, []float64{190, 192, 193, 195}, Rising, "rising +1.6 ± 0.1 cm/wk (4 weeks)"},
 	}
 	for _, tt := range tests {
 		tr := trendOf(tt.x, tt.y)
 		if tr.Reading != tt.want || tr.Points != len(tt.x) {
 			t.Errorf("%s: %+v, want %v on %d points", tt.name, tr, tt.want, len(tt.x))
 		}
-		if tt.text != "" && tr.Text() != tt.text {
-			t.Errorf("%s: Text = %q, want %q", tt.name, tr.Text(), tt.text)
+		if tt.text != "" && tr.Text(false) != tt.text {
+			t.Errorf("%s: Text = %q, want %q", tt.name, tr.Text(false), tt.text)
 		}
 	}
 }
@@ -126,5 +134,45 @@ func TestMedian(t *testing.T) {
 	}
 	if !math.IsNaN(median(nil)) {
 		t.Error("median of nothing is not NaN")
+	}
+}
+
+// TestFitLineAgainstMatrixLeastSquares checks the fit against an independent
+// computation written differently: the least-squares solution of the design
+// matrix [1 x] by gonum's QR factorisation, and SE(b) from the covariance
+// s²·(XᵀX)⁻¹ (Draper and Smith, Applied Regression Analysis, ch. 5), on
+// uneven, gappy weeks like a digest's.
+func TestFitLineAgainstMatrixLeastSquares(t *testing.T) {
+	xs := []float64{0, 1, 3, 4, 5, 7}
+	ys := []float64{171.5, 172, 174, 173.5, 176, 176.5}
+	n := len(xs)
+	X := mat.NewDense(n, 2, nil)
+	for i, x := range xs {
+		X.Set(i, 0, 1)
+		X.Set(i, 1, x)
+	}
+	Y := mat.NewDense(n, 1, ys)
+	var qr mat.QR
+	qr.Factorize(X)
+	var beta mat.Dense
+	if err := qr.SolveTo(&beta, false, Y); err != nil {
+		t.Fatal(err)
+	}
+	var fit, res mat.Dense
+	fit.Mul(X, &beta)
+	res.Sub(Y, &fit)
+	s2 := mat.Dot(res.ColView(0), res.ColView(0)) / float64(n-2)
+	var xtx, inv mat.Dense
+	xtx.Mul(X.T(), X)
+	if err := inv.Inverse(&xtx); err != nil {
+		t.Fatal(err)
+	}
+	wantA, wantB, wantSE := beta.At(0, 0), beta.At(1, 0), math.Sqrt(s2*inv.At(1, 1))
+	l, err := fitLine(xs, ys)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(l.intercept-wantA) > 1e-9 || math.Abs(l.slope-wantB) > 1e-9 || math.Abs(l.stdErr-wantSE) > 1e-9 {
+		t.Errorf("fit a %.6f b %.6f SE %.6f; matrix a %.6f b %.6f SE %.6f", l.intercept, l.slope, l.stdErr, wantA, wantB, wantSE)
 	}
 }

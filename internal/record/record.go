@@ -131,6 +131,10 @@ type Attempt struct {
 	HasPrediction       bool    `json:"has_pred,omitempty"`
 	PredictedPart       string  `json:"pred_part,omitempty"`
 	PredictedClearanceM float64 `json:"pred_m,omitempty"`
+	// BarDecimals is how many decimals of a metre the bar was typed to
+	// (units.MetreDecimals: 2 for 1.80, 3 for 1.785, 5 for 5-4¼); 0 when
+	// not known (attempts stored before it was kept).
+	BarDecimals int `json:"bar_dp,omitempty"`
 }
 
 // Key identifies an attempt in the store: athlete, time, sequence.
