@@ -229,7 +229,7 @@ func fieldList(m, old map[string]any) string {
 	sort.Strings(keys)
 	var parts []string
 	for _, k := range keys {
-		if k == "id" || k == "created" || k == "chart_style" {
+		if k == "id" || k == "created" || k == "chart_style" || strings.HasPrefix(k, "_") {
 			continue
 		}
 		name := k

@@ -172,16 +172,15 @@ func runMargin(c *call) (Reply, error) {
 	vz, peak := m.vzMS, m.peakM
 	switch {
 	case m.hasVz && m.hasPeak:
-		tk := mechanics.Takeoff{H0M: h0, VzMS: vz, GMS2: env.gMS2}
-		fromVz, err := tk.PeakHeight()
+		pv, err := mechanics.ComparePeakVz(h0, vz, peak, env.gMS2) // the one peak-vs-vz rule, shared with log
 		if err != nil {
 			return Reply{}, calcErr(err, ex)
 		}
-		if diff := math.Abs(fromVz - peak); diff > peakAgreeM {
+		if !pv.Agree {
 			return Reply{}, usageErr(ex, "peak %s and v %s disagree: vz %s from h0 %s gives a peak of %s, %s away. Give one of them (or the right h0)",
-				units.Length(peak, imp), calcNum(vz), calcSpeed(vz), units.Length(h0, imp), units.Length(fromVz, imp), units.SmallAbs(diff, imp))
+				units.Length(peak, imp), calcNum(vz), calcSpeed(vz), units.Length(h0, imp), units.Length(pv.FromVzM, imp), units.SmallAbs(math.Abs(pv.DiffM), imp))
 		}
-		notes = append(notes, fmt.Sprintf("peak %s agrees with vz %s within %s, so vz was used", units.Length(peak, imp), calcSpeed(vz), units.SmallAbs(peakAgreeM, imp)))
+		notes = append(notes, fmt.Sprintf("peak %s agrees with vz %s within %s, so vz was used", units.Length(peak, imp), calcSpeed(vz), units.SmallAbs(mechanics.PeakVzToleranceM, imp)))
 		peak = 0
 	case m.hasVz:
 	case m.hasPeak:

@@ -205,7 +205,7 @@ func (c *call) auditFor(tx Tx, athleteID uint64, action, subject string, before,
 	if c.user.Name != "" {
 		actor = c.user.Name + " (" + c.user.ID + ")"
 	}
-	return tx.Audit(record.AuditEntry{Time: c.now, Actor: actor, Action: action, Subject: subject, AthleteID: athleteID, Before: b, After: a})
+	return tx.Audit(record.AuditEntry{Time: c.now, Actor: actor, Action: action, Subject: subject, AthleteID: athleteID, Before: b, After: a, Seeded: c.req.Seed})
 }
 
 // findAthlete resolves a name typed by the speaker: "me" is the speaker's

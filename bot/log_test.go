@@ -98,8 +98,8 @@ func TestLogHistoryUndo(t *testing.T) {
 
 	r := te.must("log Mira 1.70 o 1.75 xo 1.78 xxx")
 	golden(t, "log-line", plain(r))
-	if len(r.Actions) != 1 || r.Actions[0].Label != "Undo" || r.Actions[0].Command != "undo" {
-		t.Errorf("log reply actions = %+v, want one Undo button", r.Actions)
+	if len(r.Actions) != 1 || r.Actions[0].Label != "Undo" || r.Actions[0].Command != "drop #1" {
+		t.Errorf("log reply actions = %+v, want one Undo button carrying the line: drop #1", r.Actions)
 	}
 	as := logAttempts(t, te.DB, "Mira")
 	if notation(as) != "oxoxxx" {
@@ -115,13 +115,13 @@ func TestLogHistoryUndo(t *testing.T) {
 
 	h := te.must("history Mira")
 	golden(t, "log-history", plain(h))
-	if h.Table == nil || len(h.Table.Rows) != 1 || h.Table.Rows[0][2] != "1.70 o, 1.75 xo, 1.78 xxx" || h.Table.Rows[0][3] != "1.75" {
+	if h.Table == nil || len(h.Table.Rows) != 1 || h.Table.Rows[0][2] != "#1 1.70 o, 1.75 xo, 1.78 xxx" || h.Table.Rows[0][3] != "1.75" {
 		t.Errorf("history table = %+v", h.Table)
 	}
 
 	u := te.must("undo")
 	golden(t, "log-undo", plain(u))
-	contains(t, u, "Removed Mira's line", "1.70 o, 1.75 xo, 1.78 xxx (6 jumps, practice)", "log Mira 1.70 o 1.75 xo 1.78 xxx")
+	contains(t, u, "Removed Mira's line #1", "1.70 o, 1.75 xo, 1.78 xxx (6 jumps, practice)", "log Mira 1.70 o 1.75 xo 1.78 xxx")
 	if n := len(logAttempts(t, te.DB, "Mira")); n != 0 {
 		t.Errorf("%d attempts left after undo", n)
 	}
@@ -144,7 +144,7 @@ func TestUndoRemovesOnlyTheLastLineOfTheSpeaker(t *testing.T) {
 	if got := notation(logAttempts(t, te.DB, "Mira")); got != "oo" {
 		t.Errorf("left %q, want the 1.65 o and the coach's 1.60 o", got)
 	}
-	if r := te.must("history Mira"); r.Table.Rows[0][2] != "1.65 o, 1.60 o" {
+	if r := te.must("history Mira"); r.Table.Rows[0][2] != "#1 1.65 o; #3 1.60 o" {
 		t.Errorf("history after undo: %q", r.Table.Rows[0][2])
 	}
 }
@@ -262,10 +262,23 @@ func TestLogMeetSeriesAndNumbers(t *testing.T) {
 	r := te.must("log Kai 2.00 o meet")
 	contains(t, r, "The meet so far: 2.00 xo.")
 	r = te.must("log Kai 2.04 xxx meet")
-	contains(t, r, "Series over for Kai: three consecutive failures, the last at 2.04 m.")
-	w := te.must("log Kai 2.06 o meet")
-	golden(t, "log-meet-warning", plain(w))
-	contains(t, w, "Warning: Kai's series had already ended")
+	contains(t, r, "Out: Kai's competition is over after three consecutive failures (TR 26.2).")
+	// TR 26.2: a line after three consecutive failures is refused with the
+	// rule, stores nothing, and is stored marked after confirm.
+	sum := te.checksum()
+	w := mustRefuse(t, te, "log Kai 2.06 o meet", bot.KindConflict)
+	golden(t, "log-meet-refused", plain(w))
+	contains(t, w, "Kai was already out: three consecutive failures (2.04, 2.04, 2.04)")
+	contains(t, w, "TR 26.2")
+	if te.checksum() != sum {
+		t.Error("a refused meet line changed the store")
+	}
+	w = te.must("log Kai 2.06 o meet confirm")
+	golden(t, "log-meet-confirm", plain(w))
+	contains(t, w, "Stored as breaking the rules")
+	if as := logAttempts(t, te.DB, "Kai"); as[len(as)-1].RuleBreach == "" {
+		t.Error("the confirmed line is not marked as breaking the rules")
+	}
 	var got []int
 	for _, a := range logAttempts(t, te.DB, "Kai") {
 		got = append(got, a.Number)
@@ -479,7 +492,7 @@ func TestLogImperialTeam(t *testing.T) {
 		t.Errorf("imperial bars stored as %v, %v; margin %v", as[0].BarM, as[2].BarM, as[2].CoachMarginM)
 	}
 	h := te.must("history Mira")
-	if h.Table.Rows[0][2] != "5-7 o, 5-9 xo" {
+	if h.Table.Rows[0][2] != "#1 5-7 o, 5-9 xo" {
 		t.Errorf("imperial history %q", h.Table.Rows[0][2])
 	}
 }
@@ -578,7 +591,7 @@ func TestHistoryWordOrder(t *testing.T) {
 		}
 	}
 	for _, tt := range []struct{ line, want string }{
-		{"history Mira since 2026-11-01", "export csv Mira since"},
+		{"history Mira since 2026-13-01", "not a date"},
 		{"history Mira Kai", `"Kai"`},
 		{"history Mira 30d", "in weeks"},
 	} {
@@ -646,7 +659,7 @@ func TestLogImperialQuarterInches(t *testing.T) {
 		t.Fatalf("stored %+v, want one attempt at 1.6383 m", as)
 	}
 	h := te.must("history Lea")
-	if h.Table == nil || len(h.Table.Rows) != 1 || h.Table.Rows[0][2] != "5-4½ o" {
+	if h.Table == nil || len(h.Table.Rows) != 1 || h.Table.Rows[0][2] != "#1 5-4½ o" {
 		t.Errorf("history table = %+v, want 5-4½ o", h.Table)
 	}
 }

@@ -1,7 +1,6 @@
 package bot
 
 import (
-	"encoding/json"
 	"fmt"
 	"hash/fnv"
 	"math"
@@ -10,6 +9,7 @@ import (
 	"time"
 
 	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/series"
 	"github.com/lathmark-team/lathmark/internal/units"
 )
 
@@ -29,23 +29,27 @@ const (
 	auditUndo      = "undo"
 	auditUndoPB    = "undo personal best"
 	auditImportCSV = "import csv"
+	auditFix       = "fix"
+	auditDrop      = "drop"
+	// auditLineNo is the key under which line changes keep the line's
+	// number in the audit trail (a leading _ keeps it out of audit's
+	// change column).
+	auditLineNo = "_no"
 )
 
 // logCommands log jumps and read them back.
 func logCommands() []command {
-	return []command{
+	return append([]command{
 		{name: "log", topic: "log", access: selfOrCoach,
-			usage:   "log ATHLETE|me BAR ATTEMPTS [BAR ATTEMPTS]... [meet] [by MARGIN] [approach M/S] [takeoff D] [peak P] [vz M/S] [note TEXT]",
+			usage:   "log ATHLETE|me BAR ATTEMPTS... [meet] [by M] [approach V] [takeoff D] [peak P] [vz V] [yesterday|on DATE] [at HH:MM] [confirm] [note TEXT]",
 			example: "log Kai 1.95 o 2.00 xo 2.04 xxx",
-			summary: "log jumps: o cleared, x failed, - passed (or clear, miss, knock, pass). " +
-				"by, approach, takeoff, peak and vz go with the jump written just before them, so given once at the end they describe the line's last jump; " +
-				"meet applies to the whole line, note takes the rest of the line",
+			summary: "o cleared, x failed, - passed. Measurements go with the jump written just before them; meet, the day and time go with the line; a meet line must keep the rules (confirm stores it marked)",
 			run: runLog},
-		{name: "undo", topic: "log", access: selfOrCoach, usage: "undo", example: "undo",
-			summary: "take back your last logged line or import (within 24 hours) and say what went", run: runUndo},
+		{name: "undo", topic: "log", access: selfOrCoach, usage: "undo [confirm] | undo line N", example: "undo",
+			summary: "take back your own last change of any kind (24 hours); undo line N removes line #N", run: runUndo},
 		{name: "history", aliases: []string{"hist"}, topic: "log", access: selfOrCoach,
-			usage: "history ATHLETE|me [Nw]", example: "history Kai 6w",
-			summary: "one row per session (a day): heights in notation, best, make rate; last 4 weeks unless Nw (at most 104)", run: runHistory},
+			usage: "history ATHLETE|me [Nw|since DATE]", example: "history Kai 6w",
+			summary: "a row per day's meet or practice, lines numbered (#12), best, make rate; 4 weeks unless Nw (at most 104)", run: runHistory},
 		{name: "best", aliases: []string{"bests"}, topic: "log", access: selfOrCoach,
 			usage: "best ATHLETE|me", example: "best Kai",
 			summary: "personal best, season best and practice best, with dates", run: runBest},
@@ -54,8 +58,8 @@ func logCommands() []command {
 			summary: "a CSV file of attempts, one row each (all athletes for coaches)", run: runExportCSV},
 		{name: "import csv", aliases: []string{"csv import"}, topic: "log", access: headOnly,
 			usage: "import csv PATH", example: "import csv /home/coach/attempts.csv",
-			summary: "read attempts from a CSV file on the bot's computer, or sent to the bot in chat (up to 2 MiB): all rows or none; rows whose message id was already handled are skipped", run: runImportCSV},
-	}
+			summary: "attempts from a CSV file on the bot's computer or sent in chat (2 MiB): all rows or none", run: runImportCSV},
+	}, lineChangeCommands()...)
 }
 
 // farFuture bounds open-ended scans (the store's keys end in 2262).
@@ -117,10 +121,16 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 	if err != nil {
 		return Reply{}, err
 	}
-	day := localDay(c.now, loc)
-	dayEnd := day.AddDate(0, 0, 1)
+	typed := "log " + joinRaw(c.args)
+	at, err := resolveWhen(ln.When, c.now, loc, ln.Confirm, typed)
+	if err != nil {
+		return Reply{}, err
+	}
+	day := localDay(at, loc)
+	// The day's attempts up to the session's time: a line logged for an
+	// earlier hour goes before the ones logged for later.
 	var today, sameKind []record.Attempt
-	if err := tx.Attempts(ath.ID, day, dayEnd, func(a record.Attempt) error {
+	if err := tx.Attempts(ath.ID, day, at.Add(time.Nanosecond), func(a record.Attempt) error {
 		today = append(today, a)
 		if a.Meet == ln.Meet {
 			sameKind = append(sameKind, a)
@@ -131,22 +141,37 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 	}
 
 	lineID := c.lineID("log")
-	var add []record.Attempt
-	for _, g := range ln.Groups {
-		for _, j := range g.Jumps {
-			add = append(add, record.Attempt{
-				AthleteID: ath.ID, Time: c.now, BarM: g.BarM, BarDecimals: units.MetreDecimals(g.Word, g.BarM), Outcome: j.Outcome, Meet: ln.Meet,
-				ApproachMS: j.Meas.ApproachMS, TakeoffDistM: j.Meas.TakeoffDistM, PeakM: j.Meas.PeakM, VzMS: j.Meas.VzMS,
-				HasCoachMargin: j.Meas.HasCoachMargin, CoachMarginM: j.Meas.CoachMarginM,
-				Knock: j.Knock, Short: ln.Short,
-				LoggedBy: c.lineOwner(), MessageID: c.req.MessageID, LineID: lineID,
-			})
+	add := ln.attempts(ath.ID, at, c.lineOwner(), c.req.MessageID, lineID)
+	numberAttempts(sameKind, add, ln.Meet)
+
+	// Checks that ask for confirm: the competition rules at a meet, then
+	// what is implausible for this athlete.
+	var why []string
+	var breach *series.Breach
+	var state series.State
+	if ln.Meet {
+		breach, _, state = meetBreach(meetStateOf(today), add)
+		if breach != nil {
+			why = append(why, breachReason(breach, ath.Name, imp))
 		}
 	}
-	add[len(add)-1].Note = ln.Note
-	numberAttempts(sameKind, add, ln.Meet)
+	why = append(why, plausibility(ath, add, team)...)
+	if len(why) > 0 && !ln.Confirm {
+		return Reply{}, conflictErr(typed+" confirm", "Not stored: %s. If it is right, send the line again with confirm.", strings.Join(why, "; "))
+	}
+	if breach != nil {
+		for i := range add {
+			add[i].RuleBreach = breachMark(breach)
+		}
+	}
+
+	no, err := tx.NextLineNumber()
+	if err != nil {
+		return Reply{}, err
+	}
 	jumps := make([]loggedJump, len(add))
 	for i := range add {
+		add[i].LineNo = no
 		add[i] = withPrediction(add[i], ath, team)
 		m := modelMargin(add[i], ath, team)
 		if m.ok {
@@ -155,11 +180,11 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 		jumps[i] = loggedJump{rec: add[i], model: m}
 	}
 
-	var warnings, notes []string
+	var notes []string
 	if ln.Meet {
-		warnings, notes = meetReview(sameKind, add, ath.Name, imp)
+		notes = meetNotes(state, breach, ath.Name)
 	}
-	bestLines, newPB, err := c.announceBests(tx, ath, add, loc, imp, ln.Meet, len(warnings) > 0)
+	bestLines, newPB, err := c.announceBests(tx, ath, add, at, loc, imp, ln.Meet, breach != nil)
 	if err != nil {
 		return Reply{}, err
 	}
@@ -177,7 +202,7 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 	if err := tx.AddAttempts(add); err != nil {
 		return Reply{}, err
 	}
-	line := record.Line{ID: lineID, LoggedBy: c.lineOwner(), Time: c.now, AthleteID: ath.ID, Text: "log " + joinRaw(c.args)}
+	line := record.Line{ID: lineID, LoggedBy: c.lineOwner(), Time: c.now, AthleteID: ath.ID, Text: typed, Number: no, Seeded: c.req.Seed}
 	for _, a := range add {
 		line.Attempts = append(line.Attempts, a.Key())
 	}
@@ -185,24 +210,70 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 		return Reply{}, err
 	}
 	// The attempts themselves are in the store; the trail keeps what was typed.
-	logged := map[string]any{"line": line.Text, "attempts": len(add), "meet": ln.Meet}
+	logged := map[string]any{"line": line.Text, "attempts": len(add), "meet": ln.Meet, auditLineNo: no}
+	if breach != nil {
+		logged["breach"] = breachMark(breach)
+	}
 	if err := c.audit(tx, auditLog, ath.Name, nil, logged); err != nil {
 		return Reply{}, err
 	}
-	r := logReply(ath, ln, jumps, today, sameKind, add, bestLines, warnings, notes, imp)
+	r := logReply(ath, ln, no, jumps, today, sameKind, add, bestLines, notes, imp)
+	if w := whenText(ln.When, at, loc); w != "" {
+		r.Title += w
+	}
+	if breach != nil {
+		r.Lines = append(r.Lines, "Stored as breaking the rules: "+breachMark(breach)+"; it never counts for a best.")
+	} else if len(why) > 0 {
+		r.Lines = append(r.Lines, "Stored after confirm: "+strings.Join(why, "; ")+".")
+	}
+	r.Actions = []Action{{Label: "Undo", Command: fmt.Sprintf("drop #%d", no)}}
 	return c.quietHint(tx, r, hintMeasures, measuresHintPrefix), nil
 }
 
+// attempts builds the line's attempts at time at, for the athlete.
+func (ln logLine) attempts(athleteID uint64, at time.Time, by, msg, lineID string) []record.Attempt {
+	var add []record.Attempt
+	for _, g := range ln.Groups {
+		for _, j := range g.Jumps {
+			add = append(add, record.Attempt{
+				AthleteID: athleteID, Time: at, BarM: g.BarM, BarDecimals: units.MetreDecimals(g.Word, g.BarM), Outcome: j.Outcome, Meet: ln.Meet,
+				ApproachMS: j.Meas.ApproachMS, TakeoffDistM: j.Meas.TakeoffDistM, PeakM: j.Meas.PeakM, VzMS: j.Meas.VzMS,
+				HasCoachMargin: j.Meas.HasCoachMargin, CoachMarginM: j.Meas.CoachMarginM,
+				Knock: j.Knock, Short: ln.Short,
+				LoggedBy: by, MessageID: msg, LineID: lineID,
+			})
+		}
+	}
+	add[len(add)-1].Note = ln.Note
+	return add
+}
+
+// meetNotes says where the series stands after a meet line: out, or how
+// many attempts remain at the next height (a pass carries the failures
+// before it, TR 26.2).
+func meetNotes(s series.State, breach *series.Breach, name string) []string {
+	if breach != nil {
+		return nil
+	}
+	if s.Out() {
+		return []string{fmt.Sprintf("Out: %s's competition is over after three consecutive failures (TR 26.2).", name)}
+	}
+	if r := s.Remaining(); r < series.MaxFailures {
+		carried := series.MaxFailures - r
+		verb := "carries"
+		return []string{fmt.Sprintf("%s has %s left: %s in a row, and a pass %s %s over to the next height (TR 26.2).", name, countWords(r, "try", "tries"), countWords(carried, "failure", "failures"), verb, map[bool]string{true: "it", false: "them"}[carried == 1])}
+	}
+	return nil
+}
+
 // logReply is what the coach sees after a log line.
-func logReply(ath record.Athlete, ln logLine, jumps []loggedJump, today, sameKind, add []record.Attempt, bests, warnings, notes []string, imp bool) Reply {
+func logReply(ath record.Athlete, ln logLine, no uint64, jumps []loggedJump, today, sameKind, add []record.Attempt, bests, notes []string, imp bool) Reply {
 	kind := "practice"
 	if ln.Meet {
 		kind = "meet"
 	}
-	heights := len(heightRuns(add))
 	r := Reply{
-		Title:   fmt.Sprintf("Logged for %s (%s): %s at %s", ath.Name, kind, plural(len(add), "jump"), plural(heights, "height")),
-		Actions: []Action{{Label: "Undo", Command: "undo"}},
+		Title: fmt.Sprintf("Logged for %s (%s), line #%d: %s", ath.Name, kind, no, jumpsText(add)),
 	}
 	r.Lines = append(r.Lines, runsText(heightRuns(add), imp))
 	all := append(append([]record.Attempt(nil), today...), add...)
@@ -272,9 +343,6 @@ func logReply(ath record.Athlete, ln logLine, jumps []loggedJump, today, sameKin
 	}
 	r.Lines = append(r.Lines, bests...)
 	r.Lines = append(r.Lines, notes...)
-	for _, w := range warnings {
-		r.Lines = append(r.Lines, "Warning: "+w)
-	}
 	if len(r.Assumptions) > 0 {
 		r.Caution = "The model margin is an estimate from a simple body model; the bar and the coach's eye decide."
 	}
@@ -307,12 +375,20 @@ func typedSmall(m float64, imp bool) string {
 	return strconv.FormatFloat(math.Round(m*1000)/10, 'f', -1, 64) + "cm"
 }
 
-// plural writes "1 jump", "3 jumps".
+// plural writes "1 jump", "3 jumps", "2 passes", "2 entries".
 func plural(n int, word string) string {
 	if n == 1 {
 		return "1 " + word
 	}
-	return strconv.Itoa(n) + " " + word + "s"
+	switch {
+	case strings.HasSuffix(word, "s"), strings.HasSuffix(word, "sh"), strings.HasSuffix(word, "ch"):
+		word += "es"
+	case strings.HasSuffix(word, "y") && len(word) > 1 && !strings.ContainsRune("aeiou", rune(word[len(word)-2])):
+		word = word[:len(word)-1] + "ies"
+	default:
+		word += "s"
+	}
+	return strconv.Itoa(n) + " " + word
 }
 
 // clearanceBefore finds the best clearance of one kind (meet or practice)
@@ -320,7 +396,7 @@ func plural(n int, word string) string {
 // stopAtM: then reached is true and best is that clearance.
 func clearanceBefore(tx Tx, athleteID uint64, from, to time.Time, meet bool, stopAtM float64) (best record.Attempt, found, reached bool, err error) {
 	err = tx.Attempts(athleteID, from, to, func(a record.Attempt) error {
-		if a.Meet != meet || a.Outcome != record.Cleared {
+		if a.Meet != meet || a.Outcome != record.Cleared || a.RuleBreach != "" {
 			return nil
 		}
 		if !found || higherBar(a.BarM, best.BarM) {
@@ -340,7 +416,7 @@ func clearanceBefore(tx Tx, athleteID uint64, from, to time.Time, meet bool, sto
 // personal best is returned as newPB for the caller to store, unless the
 // line broke the competition's rules (irregular: the coach may be
 // correcting something, so the profile waits for them).
-func (c *call) announceBests(tx Tx, ath record.Athlete, add []record.Attempt, loc *time.Location, imp, meet, irregular bool) (lines []string, newPBM float64, err error) {
+func (c *call) announceBests(tx Tx, ath record.Athlete, add []record.Attempt, at time.Time, loc *time.Location, imp, meet, irregular bool) (lines []string, newPBM float64, err error) {
 	top, ok := bestCleared(add)
 	if !ok {
 		return nil, 0, nil
@@ -356,9 +432,8 @@ func (c *call) announceBests(tx Tx, ath record.Athlete, add []record.Attempt, lo
 		return lines, 0, nil
 	}
 	switch {
-	case higherBar(top.BarM, pb) && irregular:
-		lines = append(lines, fmt.Sprintf("%s would be a personal best, but this line breaks the competition rules (see the warning), so the profile is unchanged. If it stands: athlete set %s pb %.2f", bar, ath.Name, top.BarM))
-		return lines, 0, nil
+	case irregular:
+		return nil, 0, nil // a line that breaks the rules never counts for a best
 	case higherBar(top.BarM, pb) && pb > 0:
 		lines = append(lines, fmt.Sprintf("New personal best: %s (was %s). The profile is updated.", bar, barText(pb, imp)))
 		return lines, top.BarM, nil
@@ -367,9 +442,9 @@ func (c *call) announceBests(tx Tx, ath record.Athlete, add []record.Attempt, lo
 		return lines, top.BarM, nil
 	}
 	// Season best: the calendar year's meet clearances, in the team's zone.
-	year := c.now.In(loc).Year()
+	year := at.In(loc).Year()
 	yearStart := time.Date(year, 1, 1, 0, 0, 0, 0, loc)
-	prev, found, reached, err := clearanceBefore(tx, ath.ID, yearStart, farFuture(), true, top.BarM)
+	prev, found, reached, err := clearanceBefore(tx, ath.ID, yearStart, time.Date(year+1, 1, 1, 0, 0, 0, 0, loc), true, top.BarM)
 	if err != nil {
 		return nil, 0, err
 	}
@@ -381,101 +456,6 @@ func (c *call) announceBests(tx Tx, ath record.Athlete, add []record.Attempt, lo
 		lines = append(lines, fmt.Sprintf("Season best: %s, the first meet clearance of %d.", bar, year))
 	}
 	return lines, 0, nil
-}
-
-func runUndo(c *call) (Reply, error) {
-	if len(c.args) > 0 {
-		return Reply{}, usageErr("undo", "undo takes no words after it; it takes back your own last line (%q is extra)", joinRaw(c.args))
-	}
-	var r Reply
-	err := c.update(func(tx Tx) error {
-		var err error
-		r, err = c.undoInTx(tx)
-		return err
-	})
-	if err != nil {
-		return Reply{}, err
-	}
-	return r, nil
-}
-
-func (c *call) undoInTx(tx Tx) (Reply, error) {
-	team, loc, err := teamAndZone(tx)
-	if err != nil {
-		return Reply{}, err
-	}
-	imp := imperial(team)
-	l, ok, err := tx.LastLine(c.lineOwner())
-	if err != nil {
-		return Reply{}, err
-	}
-	if !ok {
-		return Reply{}, notFoundErr("log Kai 1.95 o", "you have no logged line to undo")
-	}
-	when := l.Time.In(loc).Format("2006-01-02 15:04")
-	if c.now.Sub(l.Time) > undoWindow {
-		example := "history"
-		if a, ok, err := tx.AthleteByID(l.AthleteID); err == nil && ok {
-			example = "history " + a.Name
-		}
-		return Reply{}, conflictErr(example, "your last line (%q, %s) is more than 24 hours old; undo only takes back lines from the last 24 hours, and nothing was removed", l.Text, when)
-	}
-	var removed []record.Attempt
-	if !strings.HasPrefix(l.ID, "import:") {
-		if removed, err = lineAttempts(tx, l); err != nil {
-			return Reply{}, err
-		}
-	}
-	if err := tx.DeleteAttempts(l.Attempts); err != nil {
-		return Reply{}, err
-	}
-	if err := tx.DeleteLine(l); err != nil {
-		return Reply{}, err
-	}
-	if strings.HasPrefix(l.ID, "import:") {
-		athletes := map[uint64]bool{}
-		for _, k := range l.Attempts {
-			athletes[k.AthleteID] = true
-		}
-		if err := c.audit(tx, auditUndo, l.Text, l, nil); err != nil {
-			return Reply{}, err
-		}
-		return Reply{Title: "Undone", Lines: []string{
-			fmt.Sprintf("Removed the import of %s (%s) made at %s.", plural(len(l.Attempts), "attempt"), plural(len(athletes), "athlete"), when),
-			"You had typed: " + l.Text,
-		}}, nil
-	}
-	ath, ok, err := tx.AthleteByID(l.AthleteID)
-	if err != nil {
-		return Reply{}, err
-	}
-	if !ok {
-		return Reply{}, notFoundErr("history Kai", "the athlete of your last line no longer exists; nothing to undo")
-	}
-	r := Reply{Title: "Undone"}
-	kind := "practice"
-	if len(removed) > 0 && removed[0].Meet {
-		kind = "meet"
-	}
-	r.Lines = append(r.Lines,
-		fmt.Sprintf("Removed %s's line from %s: %s (%s, %s).", ath.Name, when, runsText(heightRuns(removed), imp), plural(len(removed), "jump"), kind),
-		"You had typed: "+l.Text)
-	// A meet line that raised the profile's personal best gives it back.
-	restored, err := c.restorePB(tx, &ath, l)
-	if err != nil {
-		return Reply{}, err
-	}
-	if restored {
-		if ath.PersonalBestM > 0 {
-			r.Lines = append(r.Lines, "Personal best back to "+barText(ath.PersonalBestM, imp)+".")
-		} else {
-			r.Lines = append(r.Lines, "The personal best this line set is cleared from the profile.")
-		}
-	}
-	if err := c.audit(tx, auditUndo, ath.Name, removed, nil); err != nil {
-		return Reply{}, err
-	}
-	return r, nil
 }
 
 // lineAttempts reads the attempts a line refers to, in key order.
@@ -505,41 +485,6 @@ func lineAttempts(tx Tx, l record.Line) ([]record.Attempt, error) {
 		}
 	}
 	return out, nil
-}
-
-// restorePB undoes a personal best a line wrote, found in the audit trail
-// at the line's time, as long as the profile still holds that value.
-func (c *call) restorePB(tx Tx, ath *record.Athlete, l record.Line) (bool, error) {
-	var entry record.AuditEntry
-	found := false
-	err := tx.AuditEntries(l.Time, func(e record.AuditEntry) error {
-		if e.Time.After(l.Time) {
-			return record.ErrStop
-		}
-		if e.Action == auditLogPB && e.Subject == ath.Name {
-			entry, found = e, true
-		}
-		return nil
-	})
-	if err != nil || !found {
-		return false, err
-	}
-	var before, after record.Athlete
-	if err := json.Unmarshal([]byte(entry.Before), &before); err != nil {
-		return false, fmt.Errorf("undo: audit entry of the personal best: %w", err)
-	}
-	if err := json.Unmarshal([]byte(entry.After), &after); err != nil {
-		return false, fmt.Errorf("undo: audit entry of the personal best: %w", err)
-	}
-	if math.Abs(ath.PersonalBestM-after.PersonalBestM) >= logBarTolM {
-		return false, nil
-	}
-	old := *ath
-	ath.PersonalBestM = before.PersonalBestM
-	if err := tx.PutAthlete(ath); err != nil {
-		return false, err
-	}
-	return true, c.audit(tx, auditUndoPB, ath.Name, old, *ath)
 }
 
 // historyWeeks takes the window off the arguments wherever it stands:
@@ -588,15 +533,24 @@ func runHistory(c *call) (Reply, error) {
 	if err != nil {
 		return Reply{}, err
 	}
+	var sinceWord string
+	for i := 0; i < len(args); i++ {
+		if args[i].Lower != "since" {
+			continue
+		}
+		if i+1 >= len(args) {
+			return Reply{}, usageErr("history Kai since 2026-11-01", "since needs a date after it, e.g. history Kai since 2026-11-01")
+		}
+		sinceWord = args[i+1].Raw
+		args = append(append([]token(nil), args[:i]...), args[i+2:]...)
+		break
+	}
 	name := "me"
 	switch {
 	case len(args) == 1:
 		name = args[0].Raw
 	case len(args) > 1:
-		if strings.EqualFold(args[1].Raw, "since") {
-			return Reply{}, usageErr(example, "history counts back in weeks (6w); for attempts since a date, export csv %s since 2026-09-01", args[0].Raw)
-		}
-		return Reply{}, unknownWords(args[1:], example, "history takes one athlete (or me) and a window in weeks")
+		return Reply{}, unknownWords(args[1:], example, "history takes one athlete (or me) and a window in weeks or since DATE")
 	}
 	var r Reply
 	err = c.view(func(tx Tx) error {
@@ -610,11 +564,24 @@ func runHistory(c *call) (Reply, error) {
 		}
 		to := localDay(c.now, loc).AddDate(0, 0, 1)
 		from := to.AddDate(0, 0, -7*weeks)
+		if sinceWord != "" {
+			t, ok := parseSince(sinceWord, c.now, loc)
+			if !ok {
+				return usageErr("history "+name+" since 2026-11-01", "%q is not a date; write it as YYYY-MM-DD, e.g. since 2026-11-01", sinceWord)
+			}
+			if t.Before(to.AddDate(0, 0, -7*historyMaxWeeks)) || !t.Before(to) {
+				return usageErr("history "+name+" since 2026-11-01", "since %s: history covers the last %d weeks up to today", sinceWord, historyMaxWeeks)
+			}
+			from = t
+		}
 		var as []record.Attempt
 		if err := tx.Attempts(ath.ID, from, to, func(a record.Attempt) error { as = append(as, a); return nil }); err != nil {
 			return err
 		}
 		r = historyReply(ath, as, weeks, from, loc, imperial(team))
+		if sinceWord != "" {
+			r.Title = fmt.Sprintf("History of %s since %s", ath.Name, from.In(loc).Format("2006-01-02"))
+		}
 		return nil
 	})
 	return r, err
@@ -639,7 +606,10 @@ func historyReply(ath record.Athlete, as []record.Attempt, weeks int, from time.
 		if s.short() {
 			kind += ", short"
 		}
-		r.Table.Rows = append(r.Table.Rows, []string{s.Day.Format("Mon 2006-01-02"), kind, runsText(heightRuns(s.Attempts), imp), best, madeText(made, tried)})
+		if _, p := jumpCounts(s.Attempts); p > 0 {
+			kind += ", " + plural(p, "pass")
+		}
+		r.Table.Rows = append(r.Table.Rows, []string{s.Day.Format("Mon 2006-01-02"), kind, linesText(s.Attempts, imp), best, madeText(made, tried)})
 		if k := knocksText(s.Attempts, imp); k != "" {
 			r.Notes = append(r.Notes, fmt.Sprintf("Knocks %s: %s", s.Day.Format("Mon 2006-01-02"), k))
 		}
@@ -682,25 +652,27 @@ func runBest(c *call) (Reply, error) {
 		}
 		year := c.now.In(loc).Year()
 		yearStart := time.Date(year, 1, 1, 0, 0, 0, 0, loc)
-		var meetEver, meetYear, practiceYear []record.Attempt
+		var meetAll, meetEver, meetYear, practiceYear []record.Attempt
 		err = tx.Attempts(ath.ID, time.Unix(0, 0), farFuture(), func(a record.Attempt) error {
-			if a.Outcome != record.Cleared {
-				return nil
-			}
-			thisYear := !a.Time.Before(yearStart)
 			switch {
 			case a.Meet:
-				meetEver = append(meetEver, a)
-				if thisYear {
-					meetYear = append(meetYear, a)
-				}
-			case thisYear:
+				meetAll = append(meetAll, a)
+			case a.Outcome == record.Cleared && !a.Time.Before(yearStart):
 				practiceYear = append(practiceYear, a)
 			}
 			return nil
 		})
 		if err != nil {
 			return err
+		}
+		// Bests come from valid meet series only (series.Counting).
+		for i, ok := range series.Counting(meetAll, loc) {
+			if ok {
+				meetEver = append(meetEver, meetAll[i])
+				if !meetAll[i].Time.Before(yearStart) {
+					meetYear = append(meetYear, meetAll[i])
+				}
+			}
 		}
 		r = bestReply(ath, meetEver, meetYear, practiceYear, year, loc, imp)
 		return nil

@@ -642,6 +642,19 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 		return x.a.Time.Compare(y.a.Time)
 	})
 	numberImported(rows, loc)
+	athletes := map[uint64]record.Athlete{}
+	for _, k := range cache {
+		athletes[k.a.ID] = k.a
+	}
+	if probs, err := importSeriesProblems(tx, rows, athletes, loc, imperial(team)); err != nil {
+		return Reply{}, err
+	} else if len(probs) > 0 {
+		return Reply{}, refuseRows(probs, "A meet series must keep the competition rules (World Athletics TR 26): correct the rows, or mark practice rows meet=false.")
+	}
+	no, err := tx.NextLineNumber()
+	if err != nil {
+		return Reply{}, err
+	}
 	lineID := c.lineID("import")
 	seenMsg := map[string]bool{}
 	isSeen := func(id string) (bool, error) {
@@ -654,10 +667,6 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 		v, err := tx.Seen(id)
 		seenMsg[id] = v
 		return v, err
-	}
-	athletes := map[uint64]record.Athlete{}
-	for _, k := range cache {
-		athletes[k.a.ID] = k.a
 	}
 	var (
 		batch   []record.Attempt
@@ -703,7 +712,7 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 			if a.LoggedBy == "" {
 				a.LoggedBy = c.lineOwner()
 			}
-			a.LineID = lineID
+			a.LineID, a.LineNo = lineID, no
 			a = withPrediction(a, athletes[a.AthleteID], team)
 			if !row.model {
 				if m := modelMargin(a, athletes[a.AthleteID], team); m.ok {
@@ -734,7 +743,7 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 		}
 	}
 	if len(keys) > 0 {
-		line := record.Line{ID: lineID, LoggedBy: c.lineOwner(), Time: c.now, Attempts: keys, Text: "import csv " + source}
+		line := record.Line{ID: lineID, LoggedBy: c.lineOwner(), Time: c.now, Attempts: keys, Text: "import csv " + source, Number: no, Seeded: c.req.Seed}
 		if len(per) == 1 {
 			for id := range per {
 				line.AthleteID = id
@@ -745,6 +754,9 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 		}
 	}
 	summary := map[string]any{"file": source, "rows": total, "imported": len(keys), "duplicates": dups}
+	if len(keys) > 0 {
+		summary[auditLineNo] = no
+	}
 	if err := c.audit(tx, auditImportCSV, source, nil, summary); err != nil {
 		return Reply{}, err
 	}

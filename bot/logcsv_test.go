@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 	"time"
@@ -140,7 +141,7 @@ func TestCSVRoundTrip(t *testing.T) {
 		}
 		for i := range a1 {
 			x, y := a1[i], a2[i]
-			x.AthleteID, y.AthleteID, x.LineID, y.LineID = 0, 0, "", ""
+			x.AthleteID, y.AthleteID, x.LineID, y.LineID, x.LineNo, y.LineNo = 0, 0, "", "", 0, 0
 			if !x.Time.Equal(y.Time) {
 				t.Errorf("%s attempt %d: time %v, imported %v", name, i, x.Time, y.Time)
 			}
@@ -151,7 +152,8 @@ func TestCSVRoundTrip(t *testing.T) {
 		}
 		for _, cmd := range []string{"history " + name + " 104w", "best " + name} {
 			te1.now, te2.now = testClockStart, testClockStart
-			if p1, p2 := plain(te1.must(cmd)), plain(te2.must(cmd)); p1 != p2 {
+			// Line numbers differ (the import is one line of its own).
+			if p1, p2 := stripLineNos(plain(te1.must(cmd))), stripLineNos(plain(te2.must(cmd))); p1 != p2 {
 				t.Errorf("%q differs after the round trip:\n%s\n---\n%s", cmd, p1, p2)
 			}
 		}
@@ -222,7 +224,7 @@ func TestImportSpreadsheetCSV(t *testing.T) {
 	if notation(k) != "xo" || !k[0].Meet || k[1].Number != 2 || k[1].Note != "=not a formula" || k[0].LoggedBy != "U_HEAD" {
 		t.Errorf("Kai imported as %+v", k)
 	}
-	if h := te.must("history Mira"); h.Table.Rows[0][2] != "1.70 o, 1.75 xo" {
+	if h := te.must("history Mira"); h.Table.Rows[0][2] != "#1 1.70 o, 1.75 xo" {
 		t.Errorf("history %q", h.Table.Rows[0][2])
 	}
 	if pb := logProfile(t, te.DB, "Kai").PersonalBestM; pb != 2.01 {
@@ -274,9 +276,16 @@ func TestImportCSVFileProgressAndUndo(t *testing.T) {
 		t.Errorf("coach import: %s", plain(f))
 	}
 	te.advance(time.Minute)
-	u := te.must("undo")
+	// More than 20 attempts: undo asks for confirm and removes nothing.
+	if r := te.run("undo"); r.Kind != bot.KindConflict || !strings.Contains(plain(r), "undo confirm") {
+		t.Errorf("undo of 1200 attempts without confirm: %s", plain(r))
+	}
+	if n := len(logAttempts(t, te.DB, "Mira")); n != rows {
+		t.Fatalf("%d attempts after a refused undo", n)
+	}
+	u := te.must("undo confirm")
 	golden(t, "log-undo-import", strings.ReplaceAll(plain(u), path, "FILE"))
-	contains(t, u, "Removed the import of 1200 attempts (1 athlete)")
+	contains(t, u, "Removed the import #1 of 1200 jumps (1 athlete)")
 	if n := len(logAttempts(t, te.DB, "Mira")); n != 0 {
 		t.Errorf("%d attempts left after undoing the import", n)
 	}
@@ -293,4 +302,12 @@ func TestImportCSVOnlyLocal(t *testing.T) {
 	if te.checksum() != before {
 		t.Error("refused import changed the store")
 	}
+}
+
+// stripLineNos removes line numbers (#12) from a rendered reply, and the
+// padding that goes with them.
+func stripLineNos(s string) string {
+	s = regexp.MustCompile(`#[0-9]+ `).ReplaceAllString(s, "")
+	s = regexp.MustCompile(`; `).ReplaceAllString(s, ", ")
+	return regexp.MustCompile(` +`).ReplaceAllString(s, " ")
 }

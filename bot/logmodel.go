@@ -3,6 +3,7 @@ package bot
 import (
 	"errors"
 	"fmt"
+	"math"
 
 	"github.com/lathmark-team/lathmark/internal/mechanics"
 	"github.com/lathmark-team/lathmark/internal/record"
@@ -52,11 +53,18 @@ func modelMargin(a record.Attempt, ath record.Athlete, team record.Team) jumpMod
 	// The defaults are taken here rather than inside mechanics.Margin, so
 	// that the reply can state them in the team's units.
 	notes := []string{fmt.Sprintf("model margin: arc model, body arch %d° over a body length of the stature %s, c.m. peak over the bar", logArchDeg, units.Length(ath.StatureM, imp))}
-	if a.PeakM > 0 {
-		in.PeakM = a.PeakM
-		if a.VzMS > 0 {
-			notes = append(notes, "the measured peak was used, not vz")
+	useVz := a.VzMS > 0
+	if a.PeakM > 0 && a.VzMS > 0 {
+		// The one rule for a jump measured both ways (mechanics.ComparePeakVz,
+		// as in margin): agreeing, vz is used; contradicting, no margin.
+		pv, err := mechanics.ComparePeakVz(mechanics.TakeoffHeightFraction*ath.StatureM, a.VzMS, a.PeakM, logGravity(team))
+		if err != nil || !pv.Agree {
+			return jumpModel{why: "no model margin: the measured peak and vz disagree by more than " + units.SmallAbs(mechanics.PeakVzToleranceM, imp)}
 		}
+		notes = append(notes, fmt.Sprintf("peak %s agrees with vz %.2f m/s within %s, so vz was used", units.Length(a.PeakM, imp), a.VzMS, units.SmallAbs(mechanics.PeakVzToleranceM, imp)))
+	}
+	if !useVz {
+		in.PeakM = a.PeakM
 	} else {
 		in.VzMS = a.VzMS
 		in.H0M = mechanics.TakeoffHeightFraction * ath.StatureM
@@ -91,4 +99,35 @@ func modelMargin(a record.Attempt, ath record.Athlete, team record.Team) jumpMod
 		return jumpModel{why: "no model margin: " + err.Error()}
 	}
 	return jumpModel{ok: true, marginM: res.MarginM, sigmaM: res.SigmaM, assumptions: notes}
+}
+
+// logGravity is the gravity the log's model uses: the team's venue, or 0
+// (standard gravity) without one.
+func logGravity(team record.Team) float64 {
+	if !team.HasLocation {
+		return 0
+	}
+	g, err := mechanics.NormalGravity(team.LatDeg, team.AltM)
+	if err != nil {
+		return 0
+	}
+	return g
+}
+
+// peakVzConflict says, for an attempt measured both ways, how its peak
+// contradicts its vz (mechanics.ComparePeakVz); "" when they agree or the
+// attempt lacks one of them or the profile its height.
+func peakVzConflict(a record.Attempt, ath record.Athlete, team record.Team) string {
+	if a.PeakM == 0 || a.VzMS == 0 || ath.StatureM == 0 {
+		return ""
+	}
+	imp := imperial(team)
+	h0 := mechanics.TakeoffHeightFraction * ath.StatureM
+	pv, err := mechanics.ComparePeakVz(h0, a.VzMS, a.PeakM, logGravity(team))
+	if err != nil || pv.Agree {
+		return ""
+	}
+	return fmt.Sprintf("peak %s and vz %.2f m/s disagree: vz from h0 %s (0.70 × stature) gives a peak of %s, %s away (more than %s)",
+		units.Length(a.PeakM, imp), a.VzMS, units.Length(h0, imp), units.Length(pv.FromVzM, imp),
+		units.SmallAbs(math.Abs(pv.DiffM), imp), units.SmallAbs(mechanics.PeakVzToleranceM, imp))
 }

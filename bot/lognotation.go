@@ -70,6 +70,24 @@ type logLine struct {
 	Meet    bool
 	Short   bool // a short-approach session (take-off load counts)
 	Note    string
+	// Practice: the line said practice (a fix keeps the line's kind
+	// unless it says meet or practice).
+	Practice bool
+	// Confirm: the line ends in confirm, storing it past the checks that
+	// ask for it (a rule broken at a meet, an implausible height or peak).
+	Confirm bool
+	When    logWhen
+}
+
+// logWhen is when the session was, as typed (resolved against the clock and
+// the team's zone by resolveWhen): nothing means now.
+type logWhen struct {
+	Yesterday bool
+	HasDate   bool
+	Y, M, D   int
+	HasClock  bool
+	Minute    int    // minutes after local midnight
+	Typed     string // the words as typed, for messages
 }
 
 // jumpCount is the number of attempts in the line.
@@ -94,6 +112,11 @@ const (
 	logPeak
 	logVz
 	logShort
+	logConfirm
+	logYesterday
+	logToday
+	logOn
+	logAt
 )
 
 // logKeyword recognises the option words of a log line.
@@ -117,6 +140,16 @@ func logKeyword(w string) (logWordKind, bool) {
 		return logVz, true
 	case "short", "short-approach":
 		return logShort, true
+	case "confirm", "confirmed":
+		return logConfirm, true
+	case "yesterday":
+		return logYesterday, true
+	case "today":
+		return logToday, true
+	case "on":
+		return logOn, true
+	case "at":
+		return logAt, true
 	}
 	return 0, false
 }
@@ -361,6 +394,16 @@ func parseLogLine(ts []token) (logLine, error) {
 			case logShort:
 				ln.Short = true
 				continue
+			case logConfirm:
+				ln.Confirm = true
+				continue
+			case logYesterday, logToday, logOn, logAt:
+				n, err := parseWhenWord(&ln.When, kind, ts, i, inline, value, example)
+				if err != nil {
+					return ln, err
+				}
+				i += n
+				continue
 			case logNote:
 				note := joinRaw(ts[i+1:])
 				if inline {
@@ -471,6 +514,7 @@ func parseLogLine(ts []token) (logLine, error) {
 		return ln, usageErr(example+" meet", "the line says both %q and %q; a line is either a meet or practice", meetWord, practiceWord)
 	}
 	ln.Meet = meetWord != ""
+	ln.Practice = practiceWord != ""
 	if n := ln.jumpCount(); n > logMaxJumps {
 		return ln, usageErr(example, "that is %d jumps in one line; split the session over lines of at most %d", n, logMaxJumps)
 	}

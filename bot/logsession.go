@@ -53,14 +53,15 @@ func runsText(runs []heightRun, imperial bool) string {
 	return strings.Join(parts, ", ")
 }
 
-// bestCleared returns the first attempt that cleared the highest bar.
+// bestCleared returns the first attempt that cleared the highest bar,
+// leaving out attempts stored as breaking the competition rules.
 func bestCleared(as []record.Attempt) (record.Attempt, bool) {
 	var (
 		best  record.Attempt
 		found bool
 	)
 	for _, a := range as {
-		if a.Outcome == record.Cleared && (!found || higherBar(a.BarM, best.BarM)) {
+		if a.Outcome == record.Cleared && a.RuleBreach == "" && (!found || higherBar(a.BarM, best.BarM)) {
 			best, found = a, true
 		}
 	}
@@ -79,6 +80,28 @@ func madeCount(as []record.Attempt) (made, tried int) {
 		}
 	}
 	return made, tried
+}
+
+// jumpCounts counts jumps (attempts made: o and x) and passes apart.
+func jumpCounts(as []record.Attempt) (jumps, passes int) {
+	for _, a := range as {
+		if a.Outcome == record.Passed {
+			passes++
+		} else {
+			jumps++
+		}
+	}
+	return jumps, passes
+}
+
+// jumpsText is the one way replies count attempts: "3 jumps and 1 pass",
+// "2 jumps"; a pass is never a jump.
+func jumpsText(as []record.Attempt) string {
+	j, p := jumpCounts(as)
+	if p == 0 {
+		return plural(j, "jump")
+	}
+	return plural(j, "jump") + " and " + plural(p, "pass")
 }
 
 // madeText writes a make rate: "2/6 (33%)".
@@ -147,18 +170,52 @@ func (s jumpSession) kind() string {
 	}
 }
 
-// splitSessions groups attempts (time order) by local day.
+// splitSessions groups attempts (time order) by local day and kind: a
+// day's meet and its practice are two sessions, the earlier kind first.
 func splitSessions(as []record.Attempt, loc *time.Location) []jumpSession {
 	var out []jumpSession
+	start := 0 // first session of the current day
 	for _, a := range as {
 		day := localDay(a.Time, loc)
-		if n := len(out); n > 0 && out[n-1].Day.Equal(day) {
-			out[n-1].Attempts = append(out[n-1].Attempts, a)
-			continue
+		if n := len(out); n > 0 && !out[n-1].Day.Equal(day) {
+			start = n
 		}
-		out = append(out, jumpSession{Day: day, Attempts: []record.Attempt{a}})
+		placed := false
+		for i := start; i < len(out); i++ {
+			if out[i].Attempts[0].Meet == a.Meet {
+				out[i].Attempts = append(out[i].Attempts, a)
+				placed = true
+				break
+			}
+		}
+		if !placed {
+			out = append(out, jumpSession{Day: day, Attempts: []record.Attempt{a}})
+		}
 	}
 	return out
+}
+
+// linesText writes a session's attempts line by line with each line's
+// number: "#12 1.70 o, 1.75 xo; #13 1.78 xxx" (lines stored before lines
+// were numbered show no number).
+func linesText(as []record.Attempt, imp bool) string {
+	var parts []string
+	for i := 0; i < len(as); {
+		j := i + 1
+		for j < len(as) && as[j].LineNo == as[i].LineNo && as[j].LineID == as[i].LineID {
+			j++
+		}
+		p := runsText(heightRuns(as[i:j]), imp)
+		if as[i].LineNo > 0 {
+			p = fmt.Sprintf("#%d %s", as[i].LineNo, p)
+		}
+		if as[i].RuleBreach != "" {
+			p += " (breaks the rules)"
+		}
+		parts = append(parts, p)
+		i = j
+	}
+	return strings.Join(parts, "; ")
 }
 
 // numberAttempts sets each added attempt's number at its height, carrying on
@@ -181,80 +238,4 @@ func numberAttempts(prev []record.Attempt, add []record.Attempt, meet bool) {
 		}
 		last = &add[i]
 	}
-}
-
-// seriesEndRun is how many consecutive failures end a competition series
-// (World Athletics Technical Rules 26-27: three in a row, at any heights;
-// passes neither count nor reset).
-const seriesEndRun = 3
-
-// meetReview checks new meet attempts against the same day's earlier meet
-// attempts. It never refuses (the coach may be correcting an earlier line);
-// it returns warnings for what a competition would not allow, and notes
-// such as the end of the series.
-func meetReview(prev, add []record.Attempt, athlete string, imperial bool) (warnings, notes []string) {
-	type heightState struct {
-		tries                 int
-		cleared, passed       bool
-		warnedMax, warnedDone bool
-	}
-	heights := map[int]*heightState{} // by bar in whole millimetres
-	state := func(bar float64) *heightState {
-		k := int(math.Round(bar * 1000))
-		if heights[k] == nil {
-			heights[k] = &heightState{}
-		}
-		return heights[k]
-	}
-	streak, ended := 0, false
-	endedAt := 0.0
-	topPrev := 0.0
-	warnedEnded, warnedLower := false, false
-	all := append(append([]record.Attempt(nil), prev...), add...)
-	for i, a := range all {
-		st := state(a.BarM)
-		isNew := i >= len(prev)
-		if isNew {
-			bar := units.Length(a.BarM, imperial)
-			if ended && !warnedEnded {
-				warnedEnded = true
-				warnings = append(warnings, fmt.Sprintf("%s's series had already ended after three consecutive failures (last at %s); a competition ends there. Stored as typed; `undo` removes this line if it was a slip.", athlete, units.Length(endedAt, imperial)))
-			}
-			if st.tries+1 > logMaxTries && !st.warnedMax {
-				st.warnedMax = true
-				warnings = append(warnings, fmt.Sprintf("this makes %d attempts at %s today; the rules allow three per height.", st.tries+1, bar))
-			}
-			if (st.cleared || st.passed) && !st.warnedDone {
-				st.warnedDone = true
-				what := "cleared"
-				if !st.cleared {
-					what = "passed"
-				}
-				warnings = append(warnings, fmt.Sprintf("%s was already %s earlier at this meet; nothing more is jumped at a height after that.", bar, what))
-			}
-			if len(prev) > 0 && higherBar(topPrev, a.BarM) && !warnedLower {
-				warnedLower = true
-				warnings = append(warnings, fmt.Sprintf("%s is below %s, jumped earlier at this meet; in a competition the bar only goes up.", bar, units.Length(topPrev, imperial)))
-			}
-		} else {
-			topPrev = max(topPrev, a.BarM)
-		}
-		st.tries++
-		switch a.Outcome {
-		case record.Cleared:
-			st.cleared = true
-			streak = 0
-		case record.Failed:
-			streak++
-		case record.Passed:
-			st.passed = true
-		}
-		if streak >= seriesEndRun && !ended {
-			ended, endedAt = true, a.BarM
-			if isNew {
-				notes = append(notes, fmt.Sprintf("Series over for %s: three consecutive failures, the last at %s.", athlete, units.Length(a.BarM, imperial)))
-			}
-		}
-	}
-	return warnings, notes
 }

@@ -120,7 +120,7 @@ func seedMalformedSquad(te *testEngine) {
 		"athlete link Mira <@" + malformedAthlete + ">",
 		"log Mira 1.70 o 1.75 xo 1.78 xxx",
 		"log Kai 1.95 o 2.00 xo 2.04 xxx meet",
-		"log Mira 1.72 xo peak 1.95 vz 3.9",
+		"log Mira 1.72 xo peak 2.01 vz 3.9",
 		"digest channel #jumps",
 	} {
 		te.must(line)

@@ -23,6 +23,9 @@ type Request struct {
 	// transaction, so running the delivery and forgetting it commit
 	// together; "" when there is no stored copy.
 	InboxID string
+	// Seed marks the invented demo data typed in at start (--demo): what
+	// it stores is marked seeded, and undo never takes it back.
+	Seed bool
 }
 
 // Upload is one file shared with a message. Data is nil when the front end

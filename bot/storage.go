@@ -55,6 +55,11 @@ type Tx interface {
 	// LastLine returns the most recent line logged by a chat user.
 	LastLine(loggedBy string) (l record.Line, ok bool, err error)
 	DeleteLine(l record.Line) error
+	// NextLineNumber hands out a fresh line number (#N, never reused);
+	// LastLineNumber is the highest handed out; LineByNumber finds a line.
+	NextLineNumber() (uint64, error)
+	LastLineNumber() (uint64, error)
+	LineByNumber(n uint64) (l record.Line, ok bool, err error)
 
 	User(id string) (u record.User, ok bool, err error)
 	PutUser(u record.User) error

@@ -553,6 +553,52 @@ func (t *Tx) LastLine(loggedBy string) (record.Line, bool, error) {
 	return l, true, nil
 }
 
+// NextLineNumber returns a fresh line number (1, 2, 3, ...; never reused),
+// from the lines bucket's sequence, for `history` to show as #N.
+func (t *Tx) NextLineNumber() (uint64, error) {
+	b, err := t.bucket(bucketLines)
+	if err != nil {
+		return 0, fmt.Errorf("store: next line number: %w", err)
+	}
+	n, err := b.NextSequence()
+	if err != nil {
+		return 0, fmt.Errorf("store: next line number: %w", err)
+	}
+	return n, nil
+}
+
+// LastLineNumber is the highest line number handed out so far (0 none).
+func (t *Tx) LastLineNumber() (uint64, error) {
+	b, err := t.bucket(bucketLines)
+	if err != nil {
+		return 0, fmt.Errorf("store: last line number: %w", err)
+	}
+	return b.Sequence(), nil
+}
+
+// LineByNumber finds the stored line numbered n, by one scan of the lines
+// (corrections are rare; the scan stops at the line).
+func (t *Tx) LineByNumber(n uint64) (record.Line, bool, error) {
+	if n == 0 {
+		return record.Line{}, false, nil
+	}
+	b, err := t.bucket(bucketLines)
+	if err != nil {
+		return record.Line{}, false, fmt.Errorf("store: line #%d: %w", n, err)
+	}
+	c := b.Cursor()
+	for k, v := c.Last(); k != nil; k, v = c.Prev() {
+		var l record.Line
+		if err := json.Unmarshal(v, &l); err != nil {
+			return record.Line{}, false, fmt.Errorf("store: line #%d: decode %q: %w", n, k, err)
+		}
+		if l.Number == n {
+			return l, true, nil
+		}
+	}
+	return record.Line{}, false, nil
+}
+
 // DeleteLine removes the stored line with l's user, time and ID; a line not
 // stored is ignored.
 func (t *Tx) DeleteLine(l record.Line) error {

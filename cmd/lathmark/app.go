@@ -101,7 +101,7 @@ func (a *app) seedDemo(ctx context.Context) error {
 		return fmt.Errorf("demo: %w", err)
 	}
 	for i, l := range demo.Script(time.Now(), loc) {
-		r := a.engine.Handle(ctx, bot.Request{UserID: operatorID, UserName: "demo", Text: l.Text, Time: l.Time, MessageID: fmt.Sprintf("demo-%d", i)})
+		r := a.engine.Handle(ctx, bot.Request{UserID: operatorID, UserName: "demo", Text: l.Text, Time: l.Time, MessageID: fmt.Sprintf("demo-%d", i), Seed: true})
 		if !r.OK() {
 			return fmt.Errorf("demo: seeding %q: %s", l.Text, firstLine(r))
 		}

@@ -27,6 +27,7 @@ import (
 	"time"
 
 	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/series"
 )
 
 // Trend window bounds, in weeks (the digest week included).
@@ -75,6 +76,10 @@ type Builder struct {
 type athleteAgg struct {
 	weeks []weekAgg
 	bars  map[int64]barCount // bar height in mm → counts over the whole window
+	// meet holds the window's meet attempts (every outcome), so that the
+	// meet bests can be read from valid series only (series.Counting) once
+	// all attempts are in, whatever order they came in.
+	meet []record.Attempt
 }
 
 type barCount struct{ cleared, failed int }
@@ -166,6 +171,9 @@ func (b *Builder) Add(a record.Attempt) error {
 	if a.HasModelMargin {
 		w.model = append(w.model, a.ModelMarginM)
 	}
+	if a.Meet {
+		ag.meet = append(ag.meet, a)
+	}
 	if a.Outcome == record.Passed {
 		w.passed++
 		return nil
@@ -177,9 +185,6 @@ func (b *Builder) Add(a record.Attempt) error {
 		bc.cleared++
 		if !w.hasBest || a.BarM > w.bestM {
 			w.hasBest, w.bestM = true, a.BarM
-		}
-		if a.Meet && (!w.hasMeetBest || a.BarM > w.meetBestM) {
-			w.hasMeetBest, w.meetBestM = true, a.BarM
 		}
 		if !a.Meet && (!w.hasPracticeBest || a.BarM > w.practiceBestM) {
 			w.hasPracticeBest, w.practiceBestM = true, a.BarM
@@ -379,6 +384,9 @@ func (b *Builder) Result() Digest {
 func (b *Builder) athleteWeek(a record.Athlete, ag *athleteAgg) AthleteWeek {
 	aw := AthleteWeek{AthleteID: a.ID, Name: a.Name, Private: a.Private, ChartStyle: a.ChartStyle, SeasonFrom: b.week}
 	aw.Weeks = make([]WeekStat, b.n)
+	if ag != nil {
+		b.meetBests(ag)
+	}
 	var bestX, bestY, coachX, coachY, modelX, modelY []float64
 	for i := range aw.Weeks {
 		ws := WeekStat{Week: b.first.Add(i)}
@@ -433,6 +441,26 @@ func (b *Builder) athleteWeek(a record.Athlete, ag *athleteAgg) AthleteWeek {
 	}
 	aw.PracticeAbovePB = !aw.PersonalBest && aw.HasBest && a.PersonalBestM > 0 && mm(aw.BestM) > mm(a.PersonalBestM)
 	return aw
+}
+
+// meetBests sets each week's meet best from the clearances that count for
+// a best: those of valid meet series only (series.Counting), so a line that
+// broke the competition rules never makes a personal or season best.
+func (b *Builder) meetBests(ag *athleteAgg) {
+	for i := range ag.weeks {
+		ag.weeks[i].hasMeetBest, ag.weeks[i].meetBestM = false, 0
+	}
+	for i, ok := range series.Counting(ag.meet, b.loc) {
+		if !ok {
+			continue
+		}
+		a := ag.meet[i]
+		wi := int((dayNumber(a.Time.In(b.loc)) - b.fromDay) / 7)
+		w := &ag.weeks[wi]
+		if !w.hasMeetBest || a.BarM > w.meetBestM {
+			w.hasMeetBest, w.meetBestM = true, a.BarM
+		}
+	}
 }
 
 func marginStat(ms []float64) MarginStat {

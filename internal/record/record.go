@@ -110,6 +110,7 @@ type Attempt struct {
 	LoggedBy  string `json:"by,omitempty"`  // chat user id of who logged it
 	MessageID string `json:"msg,omitempty"` // chat message id; one message logs once
 	LineID    string `json:"line,omitempty"`
+	LineNo    uint64 `json:"line_no,omitempty"` // the line's Number (#12), 0 if none
 	Note      string `json:"note,omitempty"`
 
 	// Knock is the body part the coach saw touch the bar on a failure
@@ -155,6 +156,11 @@ type Line struct {
 	AthleteID uint64    `json:"athlete"`
 	Attempts  []Key     `json:"attempts"`
 	Text      string    `json:"text"` // the command as typed, for the undo reply
+	// Number is the line's number shown by history (#12) and taken by
+	// fix and drop; 0 for lines stored before lines were numbered.
+	Number uint64 `json:"no,omitempty"`
+	// Seeded marks the invented demo data: never undone.
+	Seeded bool `json:"seeded,omitempty"`
 }
 
 // Units chooses how replies show lengths.
@@ -246,6 +252,9 @@ type AuditEntry struct {
 	AthleteID uint64 `json:"athlete,omitempty"`
 	Before    string `json:"before,omitempty"`
 	After     string `json:"after,omitempty"`
+	// Seeded marks changes made by seeding the invented demo data; undo
+	// never takes them back.
+	Seeded bool `json:"seeded,omitempty"`
 }
 
 // ErrStop, returned from an iteration callback, ends the iteration early;

@@ -1,0 +1,156 @@
+package bot
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/series"
+	"github.com/lathmark-team/lathmark/internal/units"
+)
+
+// The competition rules and the plausibility checks a log line passes
+// before it is stored. A line that fails one is refused with the reason;
+// the same line ending in confirm is stored (a rule broken at a meet is
+// then marked on its attempts, which never count for a best).
+
+// Plausibility limits.
+const (
+	// logAbovePBM is how far above the athlete's personal best a bar may
+	// be before the line asks for confirm (a typo such as 2.40 for 1.40).
+	logAbovePBM = 0.15
+	// World records of the high jump, outdoor, metres (from memory: men
+	// 2.45 m since 1993, women 2.10 m since 2024; 2.09 m before that).
+	worldRecordMenM   = 2.45
+	worldRecordWomenM = 2.10
+)
+
+// worldRecordM is the world record for the athlete's sex (the men's when the
+// profile does not say).
+func worldRecordM(s record.Sex) float64 {
+	if s == record.SexFemale {
+		return worldRecordWomenM
+	}
+	return worldRecordMenM
+}
+
+// meetStateOf follows the day's stored meet attempts (time order) through
+// the rule engine as series.Counting does: attempts stored as breaking a
+// rule are left out, and one that breaks a rule is skipped.
+func meetStateOf(day []record.Attempt) series.State {
+	var s series.State
+	for _, a := range day {
+		if a.Meet && a.RuleBreach == "" {
+			_ = s.Add(series.FromRecord(a))
+		}
+	}
+	return s
+}
+
+// meetBreach runs a new meet line's attempts after the day's state and
+// returns the first that breaks a rule (with its index in add) and the
+// state after the valid ones.
+func meetBreach(s series.State, add []record.Attempt) (*series.Breach, int, series.State) {
+	for i, a := range add {
+		if b := s.Add(series.FromRecord(a)); b != nil {
+			return b, i, s
+		}
+	}
+	return nil, -1, s
+}
+
+// breachReason says in words which rule a meet line breaks, and which
+// Technical Rule says so.
+func breachReason(b *series.Breach, name string, imp bool) string {
+	bar := barText(b.BarM, imp)
+	tr := b.Rule.TR()
+	switch b.Rule {
+	case series.ThreeFailures:
+		var bars []string
+		for _, f := range b.FailureBarsM {
+			bars = append(bars, units.Bar(f, imp))
+		}
+		if b.LeftAtBar > 0 && b.LeftAtBar < series.MaxFailures {
+			var carried []string
+			for _, f := range b.FailureBarsM {
+				if !sameBar(f, b.BarM) {
+					carried = append(carried, units.Bar(f, imp))
+				}
+			}
+			verb := "carry"
+			if len(carried) == 1 {
+				verb = "carries"
+			}
+			return fmt.Sprintf("%s had only %s left at %s: the failure%s at %s %s over (a pass does not clear failures), so three consecutive failures (%s) ended the competition and the next attempt at %s was never jumped (%s)",
+				name, countWords(b.LeftAtBar, "try", "tries"), bar, pluralS(len(carried)), strings.Join(carried, ", "), verb, strings.Join(bars, ", "), bar, tr)
+		}
+		return fmt.Sprintf("%s was already out: three consecutive failures (%s) end the competition whatever the heights (%s), so nothing at %s was jumped",
+			name, strings.Join(bars, ", "), tr, bar)
+	case series.BarDown:
+		return fmt.Sprintf("%s is below %s, jumped earlier at this meet; the bar never goes down in a competition (%s)", bar, barText(b.PrevBarM, imp), tr)
+	case series.HeightDone:
+		return fmt.Sprintf("%s was already cleared or passed at this meet; nothing more is jumped at that height (%s)", bar, tr)
+	case series.SmallRise:
+		return fmt.Sprintf("%s is less than 2 cm above %s; the bar rises at least 2 cm while others remain (%s). If %s was the last one left, confirm", bar, barText(b.PrevBarM, imp), tr, name)
+	}
+	if tr != "" {
+		return fmt.Sprintf("%s at %s: %s (%s)", name, bar, b.Rule, tr)
+	}
+	return fmt.Sprintf("%s at %s: %s", name, bar, b.Rule)
+}
+
+// breachMark is what a confirmed rule-breaking attempt stores.
+func breachMark(b *series.Breach) string {
+	if tr := b.Rule.TR(); tr != "" {
+		return b.Rule.String() + " (" + tr + ")"
+	}
+	return b.Rule.String()
+}
+
+// plausibility lists what about a line needs confirm besides the rules:
+// a bar more than 15 cm above the personal best, a clearance above the
+// world record, a measured peak that contradicts the measured vz.
+func plausibility(ath record.Athlete, add []record.Attempt, team record.Team) []string {
+	imp := imperial(team)
+	var why []string
+	top := 0.0
+	for _, a := range add {
+		top = max(top, a.BarM)
+	}
+	if pb := ath.PersonalBestM; pb > 0 && higherBar(top, pb+logAbovePBM) {
+		why = append(why, fmt.Sprintf("%s is %s above %s's personal best %s (more than %s)",
+			barText(top, imp), units.SmallAbs(top-pb, imp), ath.Name, barText(pb, imp), units.SmallAbs(logAbovePBM, imp)))
+	}
+	if b, ok := bestCleared(add); ok && higherBar(b.BarM, worldRecordM(ath.Sex)) {
+		why = append(why, fmt.Sprintf("a clearance at %s is above the world record %s", barText(b.BarM, imp), barText(worldRecordM(ath.Sex), imp)))
+	}
+	for _, a := range add {
+		if s := peakVzConflict(a, ath, team); s != "" {
+			why = append(why, s)
+			break
+		}
+	}
+	return why
+}
+
+// pluralS is "s" unless n is 1.
+func pluralS(n int) string {
+	if n == 1 {
+		return ""
+	}
+	return "s"
+}
+
+// countWords writes a small count in words: "two tries", "one pass",
+// figures from ten up.
+func countWords(n int, one, many string) string {
+	words := []string{"no", "one", "two", "three", "four", "five", "six", "seven", "eight", "nine"}
+	w := fmt.Sprint(n)
+	if n >= 0 && n < len(words) {
+		w = words[n]
+	}
+	if n == 1 {
+		return w + " " + one
+	}
+	return w + " " + many
+}
