@@ -44,7 +44,7 @@ func logCommands() []command {
 			usage:   "log ATHLETE|me BAR ATTEMPTS... [meet] [by M] [approach V] [takeoff D] [peak P] [vz V] [yesterday|on DATE] [at HH:MM] [confirm] [note TEXT]",
 			example: "log Kai 1.95 o 2.00 xo 2.04 xxx",
 			summary: "o cleared, x failed, - passed. Measurements go with the jump written just before them; meet, the day and time go with the line; a meet line must keep the rules (confirm stores it marked)",
-			run: runLog},
+			run:     runLog},
 		{name: "undo", topic: "log", access: selfOrCoach, usage: "undo [confirm] | undo line N", example: "undo",
 			summary: "take back your own last change of any kind (24 hours); undo line N removes line #N", run: runUndo},
 		{name: "history", aliases: []string{"hist"}, topic: "log", access: selfOrCoach,
