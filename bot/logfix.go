@@ -179,7 +179,7 @@ func (c *call) dropInTx(tx Tx, n uint64, confirm bool) (Reply, error) {
 		return Reply{}, err
 	}
 	r := Reply{Title: fmt.Sprintf("Dropped line #%d", n), Lines: []string{
-		fmt.Sprintf("Removed %s (%s, %s).", desc, jumpsText(old), l.Time.In(loc).Format("2006-01-02 15:04")),
+		fmt.Sprintf("Removed %s: %s, logged %s.", desc, jumpsText(old), l.Time.In(loc).Format("2006-01-02 15:04")),
 		"It had been typed: " + l.Text,
 	}}
 	if ath.ID != 0 {
