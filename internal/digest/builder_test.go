@@ -358,3 +358,31 @@ func TestPracticeIsNotABest(t *testing.T) {
 		t.Errorf("practice 1.83 over PB 1.80: PB %v SB %v practice-above %v; want only practice-above", a.PersonalBest, a.SeasonBest, a.PracticeAbovePB)
 	}
 }
+
+// Meet bests come from valid series only (series.Counting; World
+// Athletics TR 26.2: three consecutive failures end the competition): a
+// clearance after the athlete was out, or one stored as breaking a rule,
+// is no personal or season best, whatever order the attempts come in.
+func TestMeetBestsOnlyFromValidSeries(t *testing.T) {
+	athletes := []record.Athlete{{ID: 1, Name: "Ava", PersonalBestM: 1.75}}
+	as := meet(
+		at(t, 1, "2026-11-24 17:00", 1.70, record.Cleared),
+		at(t, 1, "2026-11-24 17:05", 1.75, record.Failed),
+		at(t, 1, "2026-11-24 17:06", 1.75, record.Passed),
+		at(t, 1, "2026-11-24 17:10", 1.78, record.Failed),
+		at(t, 1, "2026-11-24 17:11", 1.78, record.Failed),
+		at(t, 1, "2026-11-24 17:20", 1.81, record.Cleared), // after out
+	)
+	flagged := at(t, 1, "2026-11-25 17:00", 1.90, record.Cleared)
+	flagged.Meet, flagged.RuleBreach = true, "confirmed"
+	as = append(as, flagged)
+	for i, j := 0, len(as)-1; i < j; i, j = i+1, j-1 { // any order
+		as[i], as[j] = as[j], as[i]
+	}
+	d := build(t, Config{Week: Week{2026, 48}, TrendWeeks: 6}, athletes, as)
+	a := d.Athletes[0]
+	ws := a.Weeks[len(a.Weeks)-1]
+	if !ws.HasMeetBest || ws.MeetBestM != 1.70 || a.PersonalBest {
+		t.Errorf("meet best %v %v, PB flag %v; want 1.70 and no PB", ws.HasMeetBest, ws.MeetBestM, a.PersonalBest)
+	}
+}
