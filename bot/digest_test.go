@@ -147,7 +147,7 @@ func TestDigestLinesCarryUnits(t *testing.T) {
 	digestSquad(t, te)
 	r := te.must("digest now")
 	// The totals and the channel's table both leave the private Ines out.
-	contains(t, r, "1 athlete jumped: 6 attempts, 2 cleared, make rate 33% (not counting 1 private athlete).")
+	contains(t, r, "1 athlete jumped: 6 jumps, 2 cleared, make rate 33% (not counting 1 private athlete).")
 	contains(t, r, "Mira 1.65 m season best (meet)", "Ceiling (highest bar made on at least half its tries, 8 weeks): Mira 1.65 m.")
 	te.must("team units imperial")
 	// 1.65 m = 64.96 in, 5-5 to the inch (1 in = 0.0254 m, NIST Handbook 44).

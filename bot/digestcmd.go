@@ -275,7 +275,7 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, opts digest.ChartOption
 	if tt.Jumped == 0 {
 		r.Lines = append(r.Lines, "No jumps were logged this week.")
 	} else {
-		line := fmt.Sprintf("%d %s jumped: %d attempts, %d cleared", tt.Jumped, pluralOf(tt.Jumped, "athlete", "athletes"), tt.Attempts, tt.Clearances)
+		line := fmt.Sprintf("%d %s jumped: %s, %d cleared", tt.Jumped, pluralOf(tt.Jumped, "athlete", "athletes"), countsText(tt.Clearances+tt.Failures, tt.Passes), tt.Clearances)
 		if v, ok := tt.MakeRate.Value(); ok {
 			line += fmt.Sprintf(", make rate %.0f%%", 100*v)
 		}

@@ -26,7 +26,8 @@ import (
 // empty cells for values not measured. The columns, in export order:
 //
 //	athlete, time, bar_m, outcome, attempt, meet, approach_ms, takeoff_m,
-//	peak_m, vz_ms, coach_margin_m, model_margin_m, logged_by, message_id, note
+//	peak_m, vz_ms, coach_margin_m, model_margin_m, logged_by, message_id, note,
+//	rule_breach (the rule a confirmed meet line broke; empty for most)
 //
 // An import needs athlete, time, bar_m and outcome; the other columns may
 // be missing or in any order. Rows whose message id was already handled by
@@ -47,7 +48,7 @@ const (
 // csvColumns is the export header, in order.
 func csvColumns() []string {
 	return []string{"athlete", "time", "bar_m", "outcome", "attempt", "meet", "approach_ms", "takeoff_m",
-		"peak_m", "vz_ms", "coach_margin_m", "model_margin_m", "logged_by", "message_id", "note"}
+		"peak_m", "vz_ms", "coach_margin_m", "model_margin_m", "logged_by", "message_id", "note", "rule_breach"}
 }
 
 // csvGuard keeps a spreadsheet from reading a text cell as a formula: a
@@ -112,7 +113,7 @@ func writeAttemptsCSV(w io.Writer, names map[uint64]string, as []record.Attempt,
 		}
 		row := []string{csvGuard(names[a.AthleteID]), csvClock(a.Time, loc), csvBar(a), a.Outcome.String(),
 			number, strconv.FormatBool(a.Meet), csvOptional(a.ApproachMS), csvOptional(a.TakeoffDistM), csvOptional(a.PeakM),
-			csvOptional(a.VzMS), coach, model, csvGuard(a.LoggedBy), csvGuard(a.MessageID), csvGuard(a.Note)}
+			csvOptional(a.VzMS), coach, model, csvGuard(a.LoggedBy), csvGuard(a.MessageID), csvGuard(a.Note), csvGuard(a.RuleBreach)}
 		if err := cw.Write(row); err != nil {
 			return fmt.Errorf("write csv row: %w", err)
 		}
@@ -444,6 +445,9 @@ func parseCSVRecord(n int, rec []string, col map[string]int, now time.Time, loc 
 	row.a.LoggedBy = text("logged_by", csvMaxIDRunes)
 	row.a.MessageID = text("message_id", csvMaxIDRunes)
 	row.a.Note = text("note", logMaxNoteRunes)
+	// A meet attempt stored after confirm as breaking a rule keeps its mark
+	// (and is left out of the import's rule check, as out of every best).
+	row.a.RuleBreach = text("rule_breach", csvMaxIDRunes)
 	return row, errs
 }
 
@@ -675,6 +679,7 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 		dups    int
 		done    int
 		per     = map[uint64]int{}
+		passes  = map[uint64]int{}
 		inFile  = map[csvSame]bool{}
 	)
 	flush := func() error {
@@ -723,6 +728,9 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 				newMsgs = append(newMsgs, a.MessageID)
 			}
 			per[a.AthleteID]++
+			if a.Outcome == record.Passed {
+				passes[a.AthleteID]++
+			}
 			batch = append(batch, a)
 		}
 		if len(batch) >= csvChunk {
@@ -773,7 +781,7 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 		return Reply{Title: "Nothing new imported", Lines: []string{line}}, nil
 	}
 	r := Reply{Title: "Imported", Lines: []string{
-		fmt.Sprintf("Imported %s for %s from %s.", plural(len(keys), "attempt"), plural(len(per), "athlete"), source),
+		fmt.Sprintf("Imported %s for %s from %s.", countsText(len(keys)-sum(passes), sum(passes)), plural(len(per), "athlete"), source),
 	}}
 	if dups > 0 {
 		r.Lines = append(r.Lines, fmt.Sprintf("Skipped %s already stored: the message id was handled before, or the same attempt is logged.", plural(dups, "duplicate row")))
@@ -787,7 +795,7 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 	for _, n := range names {
 		for id, a := range athletes {
 			if a.Name == n {
-				r.Fields = append(r.Fields, Field{Label: n, Value: plural(per[id], "attempt")})
+				r.Fields = append(r.Fields, Field{Label: n, Value: countsText(per[id]-passes[id], passes[id])})
 			}
 		}
 	}
@@ -857,4 +865,13 @@ func numberImported(rows []csvRow, loc *time.Location) {
 		}
 		last[k] = *a
 	}
+}
+
+// sum adds the counts of a map.
+func sum(m map[uint64]int) int {
+	n := 0
+	for _, v := range m {
+		n += v
+	}
+	return n
 }

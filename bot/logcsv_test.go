@@ -67,7 +67,7 @@ func TestExportCSV(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if strings.Join(rows[0], ",") != "athlete,time,bar_m,outcome,attempt,meet,approach_ms,takeoff_m,peak_m,vz_ms,coach_margin_m,model_margin_m,logged_by,message_id,note" {
+	if strings.Join(rows[0], ",") != "athlete,time,bar_m,outcome,attempt,meet,approach_ms,takeoff_m,peak_m,vz_ms,coach_margin_m,model_margin_m,logged_by,message_id,note,rule_breach" {
 		t.Errorf("header %q", rows[0])
 	}
 	if len(rows) != 1+6+3+6+1 {
@@ -132,7 +132,7 @@ func TestCSVRoundTrip(t *testing.T) {
 	te2.now, te2.seq = te1.now, 100
 	r := te2.must("import csv " + path)
 	golden(t, "log-import", strings.ReplaceAll(plain(r), path, "FILE"))
-	contains(t, r, "Imported 16 attempts for 2 athletes")
+	contains(t, r, "Imported 16 jumps for 2 athletes")
 
 	for _, name := range []string{"Mira", "Kai"} {
 		a1, a2 := logAttempts(t, te1.DB, name), logAttempts(t, te2.DB, name)
@@ -215,7 +215,7 @@ func TestImportSpreadsheetCSV(t *testing.T) {
 	logAddAthlete(t, te.DB, logMira())
 	logAddAthlete(t, te.DB, logKai())
 	r := te.must("import csv ../testdata/csv/import-spreadsheet.csv")
-	contains(t, r, "Imported 5 attempts for 2 athletes")
+	contains(t, r, "Imported 5 jumps for 2 athletes")
 	m := logAttempts(t, te.DB, "Mira")
 	if notation(m) != "oxo" || m[1].Number != 1 || m[2].Number != 2 || m[2].Note != `felt "fast", good` {
 		t.Errorf("Mira imported as %+v", m)
@@ -254,7 +254,7 @@ func TestImportCSVFileProgressAndUndo(t *testing.T) {
 	if !r.OK() {
 		t.Fatal(plain(r))
 	}
-	contains(t, r, "Imported 1200 attempts for 1 athlete")
+	contains(t, r, "Imported 1200 jumps for 1 athlete")
 	if len(calls) < 3 || calls[0] != [2]int{0, rows} || calls[len(calls)-1] != [2]int{rows, rows} {
 		t.Errorf("progress calls %v", calls)
 	}

@@ -34,7 +34,7 @@ func TestImportUploadedCSV(t *testing.T) {
 	if !r.OK() {
 		t.Fatalf("refused: %s", plain(r))
 	}
-	contains(t, r, "Imported 5 attempts for 2 athletes")
+	contains(t, r, "Imported 5 jumps for 2 athletes")
 	if m := logAttempts(t, te.DB, "Mira"); notation(m) != "oxo" {
 		t.Errorf("Mira %q", notation(m))
 	}

@@ -25,7 +25,7 @@ func importSeriesProblems(tx Tx, rows []csvRow, athletes map[uint64]record.Athle
 	groups := map[group][]int{}
 	var order []group
 	for i, r := range rows {
-		if !r.a.Meet {
+		if !r.a.Meet || r.a.RuleBreach != "" {
 			continue
 		}
 		g := group{r.a.AthleteID, localDay(r.a.Time, loc)}

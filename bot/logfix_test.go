@@ -193,3 +193,23 @@ func writeFile(t *testing.T, path, data string) {
 		t.Fatal(err)
 	}
 }
+
+// A confirmed rule-breaking meet line survives export and import with its
+// mark, and the import does not refuse it.
+func TestRuleBreachRoundTripsThroughCSV(t *testing.T) {
+	te1 := newTestEngine(t)
+	logAddAthlete(t, te1.DB, logKai())
+	te1.must("log Kai 2.00 xxx meet")
+	te1.must("log Kai 2.04 o meet confirm")
+	r := te1.must("export csv Kai")
+	path := t.TempDir() + "/kai.csv"
+	writeFile(t, path, string(r.Files[0].Data))
+	te2 := newTestEngine(t)
+	logAddAthlete(t, te2.DB, logKai())
+	contains(t, te2.must("import csv "+path), "Imported 4 jumps for 1 athlete")
+	as := logAttempts(t, te2.DB, "Kai")
+	if len(as) != 4 || as[3].RuleBreach == "" || as[0].RuleBreach != "" {
+		t.Errorf("imported %+v", as)
+	}
+	contains(t, te2.must("best Kai"), "no meet clearance logged in 2026")
+}

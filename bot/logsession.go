@@ -97,11 +97,15 @@ func jumpCounts(as []record.Attempt) (jumps, passes int) {
 // jumpsText is the one way replies count attempts: "3 jumps and 1 pass",
 // "2 jumps"; a pass is never a jump.
 func jumpsText(as []record.Attempt) string {
-	j, p := jumpCounts(as)
-	if p == 0 {
-		return plural(j, "jump")
+	return countsText(jumpCounts(as))
+}
+
+// countsText writes jumps and passes: "3 jumps and 1 pass", "2 jumps".
+func countsText(jumps, passes int) string {
+	if passes == 0 {
+		return plural(jumps, "jump")
 	}
-	return plural(j, "jump") + " and " + plural(p, "pass")
+	return plural(jumps, "jump") + " and " + plural(passes, "pass")
 }
 
 // madeText writes a make rate: "2/6 (33%)".

@@ -71,7 +71,7 @@ func TestSlackCSVFromDirectMessage(t *testing.T) {
 		"url_private_download": fs.url() + "files-pri/squad.csv",
 	}))
 	msgs := fs.waitCalls(t, "chat.postMessage", 1)
-	if got := blocksText(t, msgs[0]); !strings.Contains(got, "Imported 5 attempts for 2 athletes") {
+	if got := blocksText(t, msgs[0]); !strings.Contains(got, "Imported 5 jumps for 2 athletes") {
 		t.Fatalf("reply:\n%s", got)
 	}
 	if msgs[0].Form.Get("thread_ts") != ts(0) || msgs[0].Form.Get("channel") != "D0U0HEAD" {
