@@ -2,6 +2,7 @@ package store_test
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"reflect"
 	"testing"
@@ -686,6 +687,62 @@ func TestDeleteAthlete(t *testing.T) {
 		n, err := tx.DeleteAthlete(12345)
 		if n != 0 {
 			t.Errorf("deleting an unknown athlete removed %d", n)
+		}
+		return err
+	})
+}
+
+// Line numbers come from the lines bucket's sequence: 1, 2, 3, never
+// reused, and LineByNumber finds a line by its number whoever logged it.
+func TestLineNumbers(t *testing.T) {
+	db := openTemp(t)
+	id := addAthlete(t, db, "Hana Ito")
+	var nums []uint64
+	update(t, db, func(tx *store.Tx) error {
+		for i, by := range []string{"U1", "U2", "U1"} {
+			n, err := tx.NextLineNumber()
+			if err != nil {
+				return err
+			}
+			nums = append(nums, n)
+			l := record.Line{ID: fmt.Sprintf("L%d", i), LoggedBy: by, Time: base.Add(time.Duration(i) * time.Minute), AthleteID: id, Number: n}
+			if err := tx.PutLine(l); err != nil {
+				return err
+			}
+		}
+		return nil
+	})
+	if !reflect.DeepEqual(nums, []uint64{1, 2, 3}) {
+		t.Errorf("numbers %v, want 1 2 3", nums)
+	}
+	view(t, db, func(tx *store.Tx) error {
+		for _, c := range []struct {
+			n  uint64
+			id string
+		}{{1, "L0"}, {2, "L1"}, {3, "L2"}, {4, ""}, {0, ""}} {
+			l, ok, err := tx.LineByNumber(c.n)
+			if err != nil || ok != (c.id != "") || l.ID != c.id {
+				t.Errorf("LineByNumber(%d) = %q %v %v, want %q", c.n, l.ID, ok, err, c.id)
+			}
+		}
+		last, err := tx.LastLineNumber()
+		if err != nil || last != 3 {
+			t.Errorf("LastLineNumber %d %v, want 3", last, err)
+		}
+		return nil
+	})
+	// A deleted line's number is not handed out again.
+	update(t, db, func(tx *store.Tx) error {
+		l, _, err := tx.LineByNumber(3)
+		if err != nil {
+			return err
+		}
+		if err := tx.DeleteLine(l); err != nil {
+			return err
+		}
+		n, err := tx.NextLineNumber()
+		if n != 4 {
+			t.Errorf("next number after a delete %d, want 4", n)
 		}
 		return err
 	})

@@ -50,6 +50,9 @@ func TestRulesWorkedExamples(t *testing.T) {
 		{"a pass carries the failure before it: two tries left at the next height", "TR 26.2 (effect of the rule)", "1.65 x- 1.70 xxx", ThreeFailures, 4, 0},
 		{"an impossible single line: xxx then another height", "TR 26.2", "1.65 xxx 1.70 o", ThreeFailures, 3, 0},
 		{"after x- at 1.65 two attempts remain", "TR 26.2", "1.65 x-", NoRule, 0, 2},
+		{"x- then x at the next height: one attempt remains", "TR 26.2", "1.65 x- 1.70 x", NoRule, 0, 1},
+		{"a clearance clears the run of failures", "TR 26.2", "1.65 x- 1.70 xo 1.75 xx", NoRule, 0, 1},
+		{"two passes carry two failures", "TR 26.2", "1.60 x- 1.63 x- 1.66 x 1.69 o", ThreeFailures, 5, 0},
 		{"the bar never goes down", "TR 26.4", "1.70 o 1.75 o 1.72 o", BarDown, 2, 3},
 		{"nothing more at a height cleared", "TR 26.2 (an athlete clears a height once)", "1.70 o 1.70 o", HeightDone, 1, 3},
 		{"nothing more at a height passed", "TR 26.2", "1.70 x- 1.70 x", HeightDone, 2, 2},
@@ -250,6 +253,16 @@ func TestPropertyAgainstReference(t *testing.T) {
 		}
 		if got != r || gotAt != at || v.Remaining != rem {
 			t.Fatalf("series %+v: engine %v at %d (remaining %d), reference %v at %d (remaining %d)", atts, got, gotAt, v.Remaining, r, at, rem)
+		}
+	}
+}
+
+// Every rule a series can break names the Technical Rule behind it
+// (numbers from memory, as in the package doc).
+func TestRuleNumbers(t *testing.T) {
+	for r := ThreeFailures; r < BadOutcome; r++ {
+		if r.TR() == "" || !strings.HasPrefix(r.TR(), "TR 26.") {
+			t.Errorf("%v: rule number %q", r, r.TR())
 		}
 	}
 }
