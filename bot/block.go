@@ -105,7 +105,8 @@ func combineBlock(lines []blockLine, replies []Reply) Reply {
 				continue
 			}
 			a.Label = fmt.Sprintf("%s (line %d)", a.Label, l.n)
-			// The same command from two lines (undo) acts on the later one.
+			// The same command from two lines acts once, on the later one
+			// (a logged line's Undo carries its own line: drop #N).
 			if j, ok := seen[a.Command]; ok {
 				out.Actions[j] = a
 				continue

@@ -8,6 +8,7 @@ import (
 
 	"github.com/lathmark-team/lathmark/internal/planning"
 	"github.com/lathmark-team/lathmark/internal/record"
+	"github.com/lathmark-team/lathmark/internal/series"
 )
 
 func seasonCommands() []command {
@@ -92,6 +93,14 @@ func runSeason(c *call) (Reply, error) {
 func seasonOf(tx Tx, ath record.Athlete, from, to time.Time, loc *time.Location) (planning.Season, error) {
 	var as []record.Attempt
 	err := tx.Attempts(ath.ID, from, to, func(a record.Attempt) error { as = append(as, a); return nil })
+	// Season bests come from valid meet series only (series.Counting): a
+	// meet clearance that does not count is passed on as breaking the rules.
+	counts := series.Counting(as, loc)
+	for i, a := range as {
+		if a.Meet && a.Outcome == record.Cleared && !counts[i] && a.RuleBreach == "" {
+			as[i].RuleBreach = "not part of a valid meet series"
+		}
+	}
 	return planning.Summarize(as, ath.PersonalBestM, loc), err
 }
 

@@ -91,7 +91,7 @@ func Summarize(as []record.Attempt, pbM float64, loc *time.Location) Season {
 			if a.Number == 1 {
 				s.FirstAttempt++
 			}
-			if a.Meet && a.BarM > sb+barTolM {
+			if a.Meet && a.RuleBreach == "" && a.BarM > sb+barTolM { // a line stored as breaking the rules is no best
 				sb = a.BarM
 				n := len(s.SBProgression)
 				if n > 0 && sameDay(s.SBProgression[n-1].Time, a.Time, loc) {
