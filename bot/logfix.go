@@ -248,7 +248,7 @@ func (c *call) fixInTx(tx Tx, n uint64, rest []token) (Reply, error) {
 		return Reply{}, err
 	}
 	if ln.When.given() {
-		return Reply{}, usageErr(fmt.Sprintf("fix #%d %s", n, joinRaw(rest[:1])), "fix keeps the line's day and time; to move a session, drop #%d and log it again with the day", n)
+		return Reply{}, usageErr(fmt.Sprintf("fix #%d %s", n, joinRaw(withoutWhen(rest))), "fix keeps the line's day and time; to move a session, drop #%d and log it again with the day", n)
 	}
 	old, err := lineAttempts(tx, l)
 	if err != nil {

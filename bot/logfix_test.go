@@ -120,6 +120,12 @@ func TestUndoAnyOwnChange(t *testing.T) {
 	if r := te.run("undo"); r.OK() || !strings.Contains(plain(r), "no change of your own") {
 		t.Errorf("undo reached seeded data: %s", plain(r))
 	}
+
+	// A removal cannot be undone, and undo does not reach past it.
+	te.must("athlete add Zed height 1.80")
+	te.must("log Zed 1.60 o")
+	te.must("athlete remove Zed confirm")
+	contains(t, mustRefuse(t, te, "undo", bot.KindConflict), "cannot be undone")
 }
 
 // More than 20 attempts in one line: undo asks for confirm.

@@ -22,7 +22,7 @@ const logFutureSlack = 5 * time.Minute
 // and returns how many extra tokens it took.
 func parseWhenWord(w *logWhen, kind logWordKind, ts []token, i int, inline bool, value, example string) (int, error) {
 	t := ts[i]
-	ex := example + " yesterday at 18:30"
+	ex := example + " yesterday"
 	switch kind {
 	case logYesterday, logToday:
 		if w.Yesterday || w.HasDate {
@@ -49,7 +49,7 @@ func parseWhenWord(w *logWhen, kind logWordKind, ts []token, i int, inline bool,
 		}
 		d, err := time.Parse("2006-01-02", value)
 		if err != nil {
-			return 0, usageErr(example+" on 2026-11-30", "%q is not a date; write it as YYYY-MM-DD, e.g. on 2026-11-30", value)
+			return 0, usageErr(ex, "%q is not a date; write it as YYYY-MM-DD, e.g. on 2026-11-30", value)
 		}
 		w.HasDate, w.Y, w.M, w.D = true, d.Year(), int(d.Month()), d.Day()
 		return extra, nil
@@ -59,7 +59,7 @@ func parseWhenWord(w *logWhen, kind logWordKind, ts []token, i int, inline bool,
 	}
 	h, m, ok := parseLogClock(value)
 	if !ok {
-		return 0, usageErr(example+" at 18:30", "%q is not a time of day; write it as HH:MM on the 24-hour clock, e.g. at 18:30", value)
+		return 0, usageErr(ex, "%q is not a time of day; write it as HH:MM on the 24-hour clock, e.g. at 18:30", value)
 	}
 	w.HasClock, w.Minute = true, h*60+m
 	return extra, nil
@@ -127,4 +127,21 @@ func whenText(w logWhen, at time.Time, loc *time.Location) string {
 		return ""
 	}
 	return fmt.Sprintf(" on %s", at.In(loc).Format("Mon 2006-01-02 15:04"))
+}
+
+// withoutWhen drops the day and time words from a line's words, for an
+// example that keeps the rest.
+func withoutWhen(ts []token) []token {
+	var out []token
+	for i := 0; i < len(ts); i++ {
+		switch ts[i].Lower {
+		case "yesterday", "today":
+			continue
+		case "on", "at":
+			i++
+			continue
+		}
+		out = append(out, ts[i])
+	}
+	return out
 }
