@@ -22,6 +22,9 @@ func FuzzHandle(f *testing.F) {
 		"athlete add X height 5'10\"", "log Mira 3.20 o", "log Mira 1.70 ox", "margin", "margin 1.80 v 430",
 		"athlete set Mira pb=1.83", "export csv Mira since 2026-01-01", "audit 30d", "\x00\xff", "   ", "log Mira 1.70 o note",
 		"log Mira 1.70 o\nlog Mira 1.7 q\n\nhistory Mira", "role coach sam", "audit Mira 30d",
+		"log Mira 1.70 o 1.75 x- 1.78 xx meet", "log Mira 1.81 xxo meet confirm", "log Mira 1.70 o yesterday at 18:30",
+		"log Mira 1.70 o on 2026-11-20", "fix #1 1.60 xo", "drop #1", "undo line 1", "undo confirm", "history Mira since 2026-11-01",
+		"log Mira 1.72 xo peak 1.95 vz 3.9",
 	} {
 		f.Add(seed)
 	}
