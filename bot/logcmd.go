@@ -279,6 +279,9 @@ func logReply(ath record.Athlete, ln logLine, no uint64, jumps []loggedJump, tod
 	all := append(append([]record.Attempt(nil), today...), add...)
 	made, tried := madeCount(all)
 	summary := "Today: "
+	if ln.When.given() {
+		summary = "That day: "
+	}
 	if b, ok := bestCleared(all); ok {
 		summary += "best " + barText(b.BarM, imp) + ", "
 	} else {

@@ -143,7 +143,8 @@ func TestLogPastSessions(t *testing.T) {
 	te := newTestEngine(t) // Wed 2026-11-25 10:00 UTC
 	logAddAthlete(t, te.DB, logMira())
 	r := te.must("log Mira 1.70 o yesterday")
-	contains(t, r, "on Tue 2026-11-24 10:00")
+	golden(t, "log-yesterday", plain(r))
+	contains(t, r, "on Tue 2026-11-24 10:00", "That day: best 1.70 m")
 	te.must("log Mira 1.72 xo on 2026-11-20 at 18:30")
 	h := te.must("history Mira")
 	if len(h.Table.Rows) != 2 || h.Table.Rows[0][0] != "Fri 2026-11-20" || h.Table.Rows[1][0] != "Tue 2026-11-24" {
