@@ -127,10 +127,14 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 		return Reply{}, err
 	}
 	day := localDay(at, loc)
-	// The day's attempts up to the session's time: a line logged for an
-	// earlier hour goes before the ones logged for later.
-	var today, sameKind []record.Attempt
-	if err := tx.Attempts(ath.ID, day, at.Add(time.Nanosecond), func(a record.Attempt) error {
+	// The day's attempts: those up to the session's time come before the
+	// line (a line logged for an earlier hour goes before later ones).
+	var today, sameKind, later []record.Attempt
+	if err := tx.Attempts(ath.ID, day, day.AddDate(0, 0, 1), func(a record.Attempt) error {
+		if a.Time.After(at) {
+			later = append(later, a)
+			return nil
+		}
 		today = append(today, a)
 		if a.Meet == ln.Meet {
 			sameKind = append(sameKind, a)
@@ -153,6 +157,8 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 		breach, _, state = meetBreach(meetStateOf(today), add)
 		if breach != nil {
 			why = append(why, breachReason(breach, ath.Name, imp))
+		} else if s := laterBreach(state, later, ath.Name, imp); s != "" {
+			why = append(why, s)
 		}
 	}
 	why = append(why, plausibility(ath, add, team)...)

@@ -182,6 +182,20 @@ func (c *call) dropInTx(tx Tx, n uint64, confirm bool) (Reply, error) {
 		fmt.Sprintf("Removed %s: %s, logged %s.", desc, jumpsText(old), l.Time.In(loc).Format("2006-01-02 15:04")),
 		"It had been typed: " + l.Text,
 	}}
+	if ath.ID != 0 && len(old) > 0 && old[0].Meet {
+		// Without this line, does a later line of that meet break a rule?
+		day := localDay(old[0].Time, loc)
+		var rest []record.Attempt
+		if err := tx.Attempts(ath.ID, day, day.AddDate(0, 0, 1), func(a record.Attempt) error {
+			rest = append(rest, a)
+			return nil
+		}); err != nil {
+			return Reply{}, err
+		}
+		if s := laterBreach(series.State{}, rest, ath.Name, imp); s != "" {
+			r.Lines = append(r.Lines, "Note: without it, "+strings.TrimPrefix(s, "placed before ")+"; it no longer counts for a best (fix it or drop it).")
+		}
+	}
 	if ath.ID != 0 {
 		s, err := c.settlePB(tx, &ath, l.Time, imp)
 		if err != nil {
@@ -268,11 +282,15 @@ func (c *call) fixInTx(tx Tx, n uint64, rest []token) (Reply, error) {
 		oldKeys[k] = true
 	}
 	day := localDay(at, loc)
-	var today, sameKind []record.Attempt
-	if err := tx.Attempts(ath.ID, day, at.Add(time.Nanosecond), func(a record.Attempt) error {
+	var today, sameKind, later []record.Attempt
+	if err := tx.Attempts(ath.ID, day, day.AddDate(0, 0, 1), func(a record.Attempt) error {
 		k := a.Key()
 		k.Time = k.Time.UTC()
 		if oldKeys[k] {
+			return nil
+		}
+		if a.Time.After(at) {
+			later = append(later, a)
 			return nil
 		}
 		today = append(today, a)
@@ -289,9 +307,12 @@ func (c *call) fixInTx(tx Tx, n uint64, rest []token) (Reply, error) {
 	var why []string
 	var breach *series.Breach
 	if ln.Meet {
-		breach, _, _ = meetBreach(meetStateOf(today), add)
+		var state series.State
+		breach, _, state = meetBreach(meetStateOf(today), add)
 		if breach != nil {
 			why = append(why, breachReason(breach, ath.Name, imp))
+		} else if s := laterBreach(state, later, ath.Name, imp); s != "" {
+			why = append(why, s)
 		}
 	}
 	why = append(why, plausibility(ath, add, team)...)

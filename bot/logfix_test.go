@@ -220,3 +220,34 @@ func TestRuleBreachRoundTripsThroughCSV(t *testing.T) {
 	}
 	contains(t, te2.must("best Kai"), "no meet clearance logged in 2026")
 }
+
+// TR 26.4 across an inserted past line: a line logged for an earlier time
+// of the same meet must not put a later line out of the rules.
+func TestPastMeetLineKeepsLaterLinesValid(t *testing.T) {
+	te := newTestEngine(t) // 10:00 UTC
+	logAddAthlete(t, te.DB, logKai())
+	te.must("log Kai 1.90 o meet at 09:00")
+	contains(t, mustRefuse(t, te, "log Kai 1.95 o meet at 08:00", bot.KindConflict), "placed before line #1", "the bar never goes down")
+	te.must("log Kai 1.85 o meet at 08:00")
+}
+
+// A fix of an earlier meet line is checked against the later lines too.
+func TestFixKeepsLaterLinesValid(t *testing.T) {
+	te := newTestEngine(t)
+	logAddAthlete(t, te.DB, logKai())
+	te.must("log Kai 1.90 o meet")
+	te.must("log Kai 1.95 xxx meet")
+	contains(t, mustRefuse(t, te, "fix #1 1.90 xxx", bot.KindConflict), "placed before line #2", "already out")
+	te.must("fix #1 1.90 xxo")
+}
+
+// Dropping a meet line that held a clearance between failures says which
+// later line now breaks TR 26.2 (and that it no longer counts).
+func TestDropSaysWhenALaterLineBreaks(t *testing.T) {
+	te := newTestEngine(t)
+	logAddAthlete(t, te.DB, logKai())
+	te.must("log Kai 1.90 xx meet")
+	te.must("log Kai 1.90 o meet")
+	te.must("log Kai 1.95 xx meet")
+	contains(t, te.must("drop #2"), "Note: without it", "line #3", "no longer counts")
+}

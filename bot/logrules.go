@@ -59,6 +59,21 @@ func meetBreach(s series.State, add []record.Attempt) (*series.Breach, int, seri
 	return nil, -1, s
 }
 
+// laterBreach checks the day's meet attempts stored for later times after a
+// line placed before them (a past session logged with at): the line must
+// not make a later line break the rules. "" when it does not.
+func laterBreach(s series.State, later []record.Attempt, name string, imp bool) string {
+	for _, a := range later {
+		if !a.Meet || a.RuleBreach != "" {
+			continue
+		}
+		if b := s.Add(series.FromRecord(a)); b != nil {
+			return fmt.Sprintf("placed before line #%d of the same meet, it makes that line break the rules: %s", a.LineNo, breachReason(b, name, imp))
+		}
+	}
+	return ""
+}
+
 // breachReason says in words which rule a meet line breaks, and which
 // Technical Rule says so.
 func breachReason(b *series.Breach, name string, imp bool) string {
