@@ -192,8 +192,8 @@ func (c *call) dropInTx(tx Tx, n uint64, confirm bool) (Reply, error) {
 		}); err != nil {
 			return Reply{}, err
 		}
-		if s := laterBreach(series.State{}, rest, ath.Name, imp); s != "" {
-			r.Lines = append(r.Lines, "Note: without it, "+strings.TrimPrefix(s, "placed before ")+"; it no longer counts for a best (fix it or drop it).")
+		if n, why := laterBreachOf(series.State{}, rest, ath.Name, imp); why != "" {
+			r.Lines = append(r.Lines, fmt.Sprintf("Note: without it, line #%d breaks the rules (%s), so it no longer counts for a best; fix #%d or drop #%d.", n, why, n, n))
 		}
 	}
 	if ath.ID != 0 {

@@ -63,15 +63,24 @@ func meetBreach(s series.State, add []record.Attempt) (*series.Breach, int, seri
 // line placed before them (a past session logged with at): the line must
 // not make a later line break the rules. "" when it does not.
 func laterBreach(s series.State, later []record.Attempt, name string, imp bool) string {
+	if n, why := laterBreachOf(s, later, name, imp); why != "" {
+		return fmt.Sprintf("placed before line #%d of the same meet, it makes that line break the rules: %s", n, why)
+	}
+	return ""
+}
+
+// laterBreachOf is the first later meet attempt that breaks a rule after s:
+// its line number and the reason ("" none).
+func laterBreachOf(s series.State, later []record.Attempt, name string, imp bool) (uint64, string) {
 	for _, a := range later {
 		if !a.Meet || a.RuleBreach != "" {
 			continue
 		}
 		if b := s.Add(series.FromRecord(a)); b != nil {
-			return fmt.Sprintf("placed before line #%d of the same meet, it makes that line break the rules: %s", a.LineNo, breachReason(b, name, imp))
+			return a.LineNo, breachReason(b, name, imp)
 		}
 	}
-	return ""
+	return 0, ""
 }
 
 // breachReason says in words which rule a meet line breaks, and which
@@ -96,7 +105,7 @@ func breachReason(b *series.Breach, name string, imp bool) string {
 			if len(carried) == 1 {
 				verb = "carries"
 			}
-			return fmt.Sprintf("%s had only %s left at %s: the failure%s at %s %s over (a pass does not clear failures), so three consecutive failures (%s) ended the competition and the next attempt at %s was never jumped (%s)",
+			return fmt.Sprintf("%s had only %s left at %s: the failure%s at %s %s over (a pass, or moving up, does not clear failures), so three consecutive failures (%s) ended the competition and the next attempt at %s was never jumped (%s)",
 				name, countWords(b.LeftAtBar, "try", "tries"), bar, pluralS(len(carried)), strings.Join(carried, ", "), verb, strings.Join(bars, ", "), bar, tr)
 		}
 		return fmt.Sprintf("%s was already out: three consecutive failures (%s) end the competition whatever the heights (%s), so nothing at %s was jumped",
