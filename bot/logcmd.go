@@ -422,9 +422,10 @@ func clearanceBefore(tx Tx, athleteID uint64, from, to time.Time, meet bool, sto
 
 // announceBests says whether the line's best clearance is a personal,
 // season or practice best. At a meet, a height above the profile's
-// personal best is returned as newPB for the caller to store, unless the
-// line broke the competition's rules (irregular: the coach may be
-// correcting something, so the profile waits for them).
+// personal best is returned as newPB for the caller to store. A line
+// stored as breaking the competition's rules (irregular, after confirm)
+// never counts for a best, so it announces none. at is the session's time
+// (its season is the calendar year of at, in the team's zone).
 func (c *call) announceBests(tx Tx, ath record.Athlete, add []record.Attempt, at time.Time, loc *time.Location, imp, meet, irregular bool) (lines []string, newPBM float64, err error) {
 	top, ok := bestCleared(add)
 	if !ok {

@@ -159,7 +159,10 @@ func (c *call) undoInTx(tx Tx, confirm bool) (Reply, error) {
 			r, err = c.undoTeam(tx, e, when)
 			break
 		}
-		return Reply{}, conflictErr("audit", "your last change (%s %s, %s) cannot be undone: what it deleted is gone (a backup holds it); nothing was changed", e.Action, e.Subject, when)
+		if e.After == "" && e.Before != "" || e.Action == "forget" {
+			return Reply{}, conflictErr("audit", "your last change (%s %s, %s) cannot be undone: what it deleted is gone (a backup holds it); nothing was changed", e.Action, clip(e.Subject, 40), when)
+		}
+		return Reply{}, conflictErr("audit", "your last change (%s %s, %s) is not one undo can take back; change it back by hand. Nothing was changed", e.Action, clip(e.Subject, 40), when)
 	}
 	if err != nil {
 		return Reply{}, err
