@@ -91,7 +91,7 @@ func TestRoleMatrix(t *testing.T) {
 		{"log Kai 2.00 xo", staff},
 		{"undo", members},
 		{"fix #1 1.70 o 1.75 xxo", self}, // Mira's line
-		{"fix #2 1.90 o", staff},          // Kai's line
+		{"fix #2 1.90 o", staff},         // Kai's line
 		{"drop #1", self},
 		{"drop #2", staff},
 		{"undo line 2", staff},
