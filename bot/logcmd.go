@@ -279,7 +279,7 @@ func logReply(ath record.Athlete, ln logLine, no uint64, jumps []loggedJump, tod
 		kind = "meet"
 	}
 	r := Reply{
-		Title: fmt.Sprintf("Logged for %s (%s), line #%d: %s", ath.Name, kind, no, jumpsText(add)),
+		Title: fmt.Sprintf("Logged for %s (%s), line #%d: %s", ath.Name, kind, no, jumpPassText(add)),
 	}
 	r.Lines = append(r.Lines, runsText(heightRuns(add), imp))
 	all := append(append([]record.Attempt(nil), today...), add...)

@@ -179,7 +179,7 @@ func (c *call) dropInTx(tx Tx, n uint64, confirm bool) (Reply, error) {
 		return Reply{}, err
 	}
 	r := Reply{Title: fmt.Sprintf("Dropped line #%d", n), Lines: []string{
-		fmt.Sprintf("Removed %s: %s, logged %s.", desc, jumpsText(old), l.Time.In(loc).Format("2006-01-02 15:04")),
+		fmt.Sprintf("Removed %s: %s, logged %s.", desc, jumpPassText(old), l.Time.In(loc).Format("2006-01-02 15:04")),
 		"It had been typed: " + l.Text,
 	}}
 	if ath.ID != 0 && len(old) > 0 && old[0].Meet {
@@ -351,7 +351,7 @@ func (c *call) fixInTx(tx Tx, n uint64, rest []token) (Reply, error) {
 		return Reply{}, err
 	}
 	r := Reply{Title: fmt.Sprintf("Fixed line #%d for %s", n, ath.Name), Lines: []string{
-		fmt.Sprintf("%s → %s: %s, %s.", runsText(heightRuns(old), imp), runsText(heightRuns(add), imp), jumpsText(add), at.In(loc).Format("Mon 2006-01-02 15:04")),
+		fmt.Sprintf("%s → %s: %s, %s.", runsText(heightRuns(old), imp), runsText(heightRuns(add), imp), jumpPassText(add), at.In(loc).Format("Mon 2006-01-02 15:04")),
 	}}
 	if breach != nil {
 		r.Lines = append(r.Lines, "Stored as breaking the rules: "+breachMark(breach)+"; it never counts for a best.")
@@ -426,13 +426,13 @@ func (c *call) undoLineChange(tx Tx, e record.AuditEntry, when string, confirm b
 		for _, k := range cur.Attempts {
 			athletes[k.AthleteID] = true
 		}
-		lines = append(lines, fmt.Sprintf("Removed the import #%d of %s (%s) made at %s.", cur.Number, jumpsText(curAtts), plural(len(athletes), "athlete"), when), "You had typed: "+cur.Text)
+		lines = append(lines, fmt.Sprintf("Removed the import #%d of %s (%s) made at %s.", cur.Number, jumpPassText(curAtts), plural(len(athletes), "athlete"), when), "You had typed: "+cur.Text)
 	case auditLog:
 		kind := "practice"
 		if len(curAtts) > 0 && curAtts[0].Meet {
 			kind = "meet"
 		}
-		lines = append(lines, fmt.Sprintf("Removed %s's line #%d from %s: %s (%s, %s).", e.Subject, cur.Number, when, runsText(heightRuns(curAtts), imp), jumpsText(curAtts), kind), "You had typed: "+cur.Text)
+		lines = append(lines, fmt.Sprintf("Removed %s's line #%d from %s: %s (%s, %s).", e.Subject, cur.Number, when, runsText(heightRuns(curAtts), imp), jumpPassText(curAtts), kind), "You had typed: "+cur.Text)
 	case auditFix:
 		lines = append(lines, fmt.Sprintf("Took back your fix of line #%d at %s: %s is back.", n, when, runsText(heightRuns(saved.Attempts), imp)))
 	case auditDrop:

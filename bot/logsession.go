@@ -94,9 +94,9 @@ func jumpCounts(as []record.Attempt) (jumps, passes int) {
 	return jumps, passes
 }
 
-// jumpsText is the one way replies count attempts: "3 jumps and 1 pass",
+// jumpPassText is the one way replies count attempts: "3 jumps and 1 pass",
 // "2 jumps"; a pass is never a jump.
-func jumpsText(as []record.Attempt) string {
+func jumpPassText(as []record.Attempt) string {
 	return countsText(jumpCounts(as))
 }
 
