@@ -46,6 +46,7 @@ func allCommands() []command {
 		roleCommands(),
 		planCommands(),
 		seasonCommands(),
+		meetCommands(),
 	} {
 		cs = append(cs, group...)
 	}

@@ -25,6 +25,9 @@ func TestHelpExamplesRun(t *testing.T) {
 			copyFile(t, tmpl, path)
 			te := newTestEngineAt(t, path)
 			te.idPrefix = "ex-"
+			for _, line := range helpSetup[c.Name] {
+				te.must(line)
+			}
 			r := te.run(c.Example)
 			switch {
 			case r.Kind == bot.KindInternal, r.Kind == bot.KindUsage, r.Kind == bot.KindForbidden:
@@ -34,4 +37,14 @@ func TestHelpExamplesRun(t *testing.T) {
 			}
 		})
 	}
+}
+
+// helpSetup are lines run before a help example that needs some state: the
+// meet sheet commands need an open sheet (and an entry to take off).
+var helpSetup = map[string][]string{
+	"meet add":   {"meet open Club-night"},
+	"meet log":   {"meet open Club-night", "meet add Bea guest"},
+	"meet undo":  {"meet open Club-night", "meet add Bea guest", "meet log Bea 1.60 xo"},
+	"meet close": {"meet open Club-night"},
+	"standings":  {"meet open Club-night"},
 }

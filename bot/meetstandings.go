@@ -1,0 +1,175 @@
+package bot
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"github.com/lathmark-team/lathmark/internal/meetsheet"
+	"github.com/lathmark-team/lathmark/internal/standings"
+	"github.com/lathmark-team/lathmark/internal/units"
+)
+
+// standingsMaxRows is how many rows the short standings show.
+const standingsMaxRows = 8
+
+func runStandings(c *call) (Reply, error) {
+	if len(c.args) > 0 {
+		return Reply{}, usageErr(standingsExample, "standings takes no words after it (%q is extra); it reads the open sheet", joinRaw(c.args))
+	}
+	var r Reply
+	err := c.view(func(tx Tx) error {
+		team, _, err := teamAndZone(tx)
+		if err != nil {
+			return err
+		}
+		s, err := mustOpenSheet(tx)
+		if err != nil {
+			return err
+		}
+		hide, err := c.hiddenOnSheet(tx, s)
+		if err != nil {
+			return err
+		}
+		r = standingsReply(s, s.Now(), imperial(team), hide)
+		return nil
+	})
+	return r, err
+}
+
+// ordinal writes 1st, 2nd, 3rd, 4th, 11th, 21st.
+func ordinal(n int) string {
+	suf := "th"
+	switch {
+	case n%100 >= 11 && n%100 <= 13:
+	case n%10 == 1:
+		suf = "st"
+	case n%10 == 2:
+		suf = "nd"
+	case n%10 == 3:
+		suf = "rd"
+	}
+	return strconv.Itoa(n) + suf
+}
+
+// notShown stands for a name kept from this reader.
+const notShown = "an athlete not shown here"
+
+func standingsReply(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[string]bool) Reply {
+	name := func(n string) string {
+		if hide[n] {
+			return notShown
+		}
+		return n
+	}
+	r := Reply{Title: standingsTitle(s, st, imp, name), Caution: meetCaution}
+	full := &Table{Header: []string{"place", "name", "best", "jumps at best", "failures to best", "heights"}}
+	short := &Table{Header: []string{"place", "name", "best", "heights"}}
+	masked := 0
+	for _, x := range st.Standings {
+		if hide[x.Name] {
+			masked++
+			continue
+		}
+		place, best := "–", "–"
+		if x.Place > 0 {
+			place = strconv.Itoa(x.Place)
+			if x.Shared {
+				place += "="
+			}
+			best = units.Bar(x.BestM, imp)
+		}
+		heights := seriesText(s, x.Name, imp)
+		if x.Out {
+			heights += " (out)"
+		}
+		full.Rows = append(full.Rows, []string{place, x.Name, best, strconv.Itoa(x.AttemptsAtBest), strconv.Itoa(x.FailuresToBest), heights})
+		if len(short.Rows) < standingsMaxRows {
+			short.Rows = append(short.Rows, []string{place, x.Name, best, heights})
+		}
+	}
+	notes := tieNotes(st.Standings, imp, name)
+	notes = append(notes, roundLine(st, imp, hide))
+	if masked > 0 {
+		notes = append(notes, fmt.Sprintf("%s not shown here (private or under 18): ask in a direct message.", plural(masked, "squad athlete")))
+	}
+	r.Table, r.Notes = short, notes
+	if len(full.Rows) > len(short.Rows) {
+		r.Notes = append(r.Notes, fmt.Sprintf("%d more: standings more.", len(full.Rows)-len(short.Rows)))
+	}
+	d := r
+	d.Table, d.Notes = full, append(append([]string(nil), notes...), "Ties: fewest jumps at the height of the tie (TR 26.8.1), then fewest failures up to and including the last height cleared (TR 26.8.2), then an equal place, or a jump-off for first where the meet uses one (TR 26.8.3, TR 26.9).")
+	r.Details = &d
+	return r
+}
+
+// standingsTitle is the verdict: who leads or won, at what height.
+func standingsTitle(s meetsheet.Sheet, st meetsheet.State, imp bool, name func(string) string) string {
+	head := s.Name + " (" + s.Date + "): "
+	var first []string
+	var at float64
+	jumpOff := false
+	for _, x := range st.Standings {
+		if x.Place == 1 {
+			first = append(first, name(x.Name))
+			at, jumpOff = x.BestM, jumpOff || x.JumpOff
+		}
+	}
+	switch {
+	case len(first) == 0:
+		return head + "no height cleared yet."
+	case jumpOff:
+		return head + joinAnd(first) + " tie for first at " + units.Bar(at, imp) + ": jump-off (TR 26.9)."
+	case len(first) > 1 && st.Over:
+		return head + joinAnd(first) + " share first at " + units.Bar(at, imp) + "."
+	case len(first) > 1:
+		return head + joinAnd(first) + " share the lead at " + units.Bar(at, imp) + "."
+	case st.Over:
+		return head + first[0] + " wins at " + units.Bar(at, imp) + "."
+	}
+	return head + first[0] + " leads at " + units.Bar(at, imp) + "."
+}
+
+// tieNotes says, for each tie on height, which rule broke it.
+func tieNotes(ss []standings.Standing, imp bool, name func(string) string) []string {
+	var out []string
+	for i := 0; i < len(ss); i++ {
+		x := ss[i]
+		switch {
+		case x.Shared && x.Place > 0:
+			group := []string{name(x.Name)}
+			for i+1 < len(ss) && ss[i+1].Place == x.Place {
+				i++
+				group = append(group, name(ss[i].Name))
+			}
+			what := standings.RuleEqual
+			if x.JumpOff {
+				what = standings.RuleJumpOff
+			}
+			out = append(out, fmt.Sprintf("%s share %s at %s: %s.", joinAnd(group), ordinal(x.Place), units.Bar(x.BestM, imp), what))
+		case x.Rule != "" && x.Behind != "":
+			out = append(out, fmt.Sprintf("%s ahead of %s at %s: %s.", name(x.Name), name(x.Behind), units.Bar(x.BestM, imp), x.Rule))
+		}
+	}
+	return out
+}
+
+// joinAnd writes "A", "A and B", "A, B and C".
+func joinAnd(xs []string) string {
+	if len(xs) <= 1 {
+		return strings.Join(xs, "")
+	}
+	return strings.Join(xs[:len(xs)-1], ", ") + " and " + xs[len(xs)-1]
+}
+
+// seriesText is a competitor's series on the sheet in the notation.
+func seriesText(s meetsheet.Sheet, name string, imp bool) string {
+	var js []meetsheet.Jump
+	for _, a := range s.Series(name) {
+		js = append(js, meetsheet.Jump{BarM: a.BarM, Outcome: a.Outcome, JumpOff: a.JumpOff})
+	}
+	if len(js) == 0 {
+		return "not jumped yet"
+	}
+	return jumpsText(js, imp)
+}
