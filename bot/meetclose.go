@@ -51,13 +51,7 @@ func runMeetClose(c *call) (Reply, error) {
 		if err := c.auditFor(tx, 0, auditMeetClose, "meet "+s.Name, nil, summary); err != nil {
 			return err
 		}
-		name := func(n string) string {
-			if hide[n] {
-				return notShown
-			}
-			return n
-		}
-		r = Reply{Title: "Filed: " + standingsTitle(s, st, imp, name), Caution: meetCaution}
+		r = Reply{Title: "Filed: " + standingsTitle(s, st, imp, hide), Caution: meetCaution}
 		r.Lines = append(r.Lines, filedLine(s, filed, hide))
 		r.Lines = append(r.Lines, pbs...)
 		for _, x := range st.Standings {

@@ -200,21 +200,18 @@ func roundLine(st meetsheet.State, imp bool, hide map[string]bool) string {
 		return "No height jumped yet."
 	}
 	var who []string
-	masked := 0
 	for _, x := range st.ToJump {
-		if hide[x.Name] {
-			masked++
-			continue
+		if !hide[x.Name] {
+			who = append(who, fmt.Sprintf("%s %d", x.Name, x.Left))
 		}
-		who = append(who, fmt.Sprintf("%s %d", x.Name, x.Left))
-	}
-	if masked > 0 {
-		who = append(who, fmt.Sprintf("%s not shown %s", plural(masked, "athlete"), "here"))
 	}
 	if st.CurrentM == 0 {
 		why := st.NextWhy
 		if why == "" {
 			why = "not announced (at least 2 cm up, TR 26.4)"
+		}
+		if len(who) == 0 {
+			return "Next height: " + why + "."
 		}
 		return "Next height: " + why + "; to jump " + strings.Join(who, ", ") + " (attempts left)."
 	}

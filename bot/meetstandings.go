@@ -52,17 +52,8 @@ func ordinal(n int) string {
 	return strconv.Itoa(n) + suf
 }
 
-// notShown stands for a name kept from this reader.
-const notShown = "an athlete not shown here"
-
 func standingsReply(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[string]bool) Reply {
-	name := func(n string) string {
-		if hide[n] {
-			return notShown
-		}
-		return n
-	}
-	r := Reply{Title: standingsTitle(s, st, imp, name), Caution: meetCaution}
+	r := Reply{Title: standingsTitle(s, st, imp, hide), Caution: meetCaution}
 	full := &Table{Header: []string{"place", "name", "best", "jumps at best", "failures to best", "heights"}}
 	short := &Table{Header: []string{"place", "name", "best", "heights"}}
 	masked := 0
@@ -88,7 +79,7 @@ func standingsReply(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[st
 			short.Rows = append(short.Rows, []string{place, x.Name, best, heights})
 		}
 	}
-	notes := tieNotes(st.Standings, imp, name)
+	notes := tieNotes(st.Standings, imp, hide)
 	notes = append(notes, roundLine(st, imp, hide))
 	if masked > 0 {
 		notes = append(notes, fmt.Sprintf("%s not shown here (private or under 18): ask in a direct message.", plural(masked, "squad athlete")))
@@ -103,55 +94,76 @@ func standingsReply(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[st
 	return r
 }
 
-// standingsTitle is the verdict: who leads or won, at what height.
-func standingsTitle(s meetsheet.Sheet, st meetsheet.State, imp bool, name func(string) string) string {
+// standingsTitle is the verdict: who leads or won, at what height. Names
+// in hide are left out; when every leader is hidden the title says only
+// that.
+func standingsTitle(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[string]bool) string {
 	head := s.Name + " (" + s.Date + "): "
 	var first []string
 	var at float64
-	jumpOff := false
+	jumpOff, tied := false, false
 	for _, x := range st.Standings {
-		if x.Place == 1 {
-			first = append(first, name(x.Name))
-			at, jumpOff = x.BestM, jumpOff || x.JumpOff
+		if x.Place != 1 {
+			continue
+		}
+		at, jumpOff, tied = x.BestM, jumpOff || x.JumpOff, tied || x.Shared
+		if !hide[x.Name] {
+			first = append(first, x.Name)
 		}
 	}
+	bar := units.Bar(at, imp)
 	switch {
-	case len(first) == 0:
+	case at == 0:
 		return head + "no height cleared yet."
+	case len(first) == 0:
+		return head + "the leaders are not shown here; ask in a direct message."
 	case jumpOff:
-		return head + joinAnd(first) + " tie for first at " + units.Bar(at, imp) + ": jump-off (TR 26.9)."
-	case len(first) > 1 && st.Over:
-		return head + joinAnd(first) + " share first at " + units.Bar(at, imp) + "."
-	case len(first) > 1:
-		return head + joinAnd(first) + " share the lead at " + units.Bar(at, imp) + "."
+		return head + joinAnd(first) + " tied for first at " + bar + ": jump-off (TR 26.9)."
+	case tied && st.Over:
+		return head + joinAnd(first) + " " + shareVerb(len(first)) + " first at " + bar + "."
+	case tied:
+		return head + joinAnd(first) + " " + shareVerb(len(first)) + " the lead at " + bar + "."
 	case st.Over:
-		return head + first[0] + " wins at " + units.Bar(at, imp) + "."
+		return head + first[0] + " wins at " + bar + "."
 	}
-	return head + first[0] + " leads at " + units.Bar(at, imp) + "."
+	return head + first[0] + " leads at " + bar + "."
 }
 
-// tieNotes says, for each tie on height, which rule broke it.
-func tieNotes(ss []standings.Standing, imp bool, name func(string) string) []string {
+// tieNotes says, for each tie on height, which rule broke it. Ties that
+// involve a name in hide are left out.
+func tieNotes(ss []standings.Standing, imp bool, hide map[string]bool) []string {
 	var out []string
 	for i := 0; i < len(ss); i++ {
 		x := ss[i]
 		switch {
 		case x.Shared && x.Place > 0:
-			group := []string{name(x.Name)}
-			for i+1 < len(ss) && ss[i+1].Place == x.Place {
-				i++
-				group = append(group, name(ss[i].Name))
+			var group []string
+			for j := i; j < len(ss) && ss[j].Place == x.Place; j++ {
+				if !hide[ss[j].Name] {
+					group = append(group, ss[j].Name)
+				}
+				i = j
 			}
 			what := standings.RuleEqual
 			if x.JumpOff {
 				what = standings.RuleJumpOff
 			}
-			out = append(out, fmt.Sprintf("%s share %s at %s: %s.", joinAnd(group), ordinal(x.Place), units.Bar(x.BestM, imp), what))
-		case x.Rule != "" && x.Behind != "":
-			out = append(out, fmt.Sprintf("%s ahead of %s at %s: %s.", name(x.Name), name(x.Behind), units.Bar(x.BestM, imp), x.Rule))
+			if len(group) > 0 {
+				out = append(out, fmt.Sprintf("%s %s %s at %s: %s.", joinAnd(group), shareVerb(len(group)), ordinal(x.Place), units.Bar(x.BestM, imp), what))
+			}
+		case x.Rule != "" && x.Behind != "" && !hide[x.Name] && !hide[x.Behind]:
+			out = append(out, fmt.Sprintf("%s ahead of %s at %s: %s.", x.Name, x.Behind, units.Bar(x.BestM, imp), x.Rule))
 		}
 	}
 	return out
+}
+
+// shareVerb is "shares" for one name, "share" for more.
+func shareVerb(n int) string {
+	if n == 1 {
+		return "shares"
+	}
+	return "share"
 }
 
 // joinAnd writes "A", "A and B", "A, B and C".
