@@ -252,3 +252,74 @@ func TestMeetRoles(t *testing.T) {
 		}
 	}
 }
+
+// TestSeasonKeepsYouthFromChannel: season, compare and plan of an athlete
+// under 18 without a guardian's consent go to the asker only, like a
+// private athlete's; with consent on file they may be posted.
+func TestSeasonKeepsYouthFromChannel(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Tia height 1.60 born 2012")
+	te.must("athlete add Ren height 1.80")
+	te.must("log Tia 1.40 o 1.45 xo meet")
+	te.must("log Ren 1.60 o 1.65 xo meet")
+	for _, line := range []string{"season Tia", "compare Ren Tia", "plan Tia"} {
+		if r := te.asIn("U_HEAD", "C_JUMPS", false, line); !r.OK() || !r.Ephemeral {
+			t.Errorf("%q in a channel: ephemeral %v\n%s", line, r.Ephemeral, plain(r))
+		}
+	}
+	if r := te.asIn("U_HEAD", "C_JUMPS", false, "season Ren"); !r.OK() || r.Ephemeral {
+		t.Errorf("an adult's season may be posted: %v", r.Ephemeral)
+	}
+}
+
+// TestMeetJumpOff: with jumpoff on the sheet, two athletes tied for first
+// after the tie rules go to a jump-off (TR 26.9); one attempt a height, the
+// bar down after both fail, and the first to clear where the other fails
+// wins. Without jumpoff they share first (TR 26.8.3).
+func TestMeetJumpOff(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("meet open Final jumpoff")
+	te.must("meet add Pia Quin guest")
+	te.must("meet log Pia 1.80 xo 1.83 xxx")
+	te.must("meet log Quin 1.80 xo 1.83 xxx")
+	contains(t, te.must("standings"), "Pia and Quin tied for first at 1.80: jump-off (TR 26.9)")
+	for _, line := range []string{"meet log Pia 1.83 x 1.85 o jumpoff", "meet log Pia 1.83 xo jumpoff"} {
+		if r := te.run(line); r.OK() || !strings.Contains(plain(r), "TR 26.9") {
+			t.Errorf("%q: the bar goes down after a miss, one attempt a height (TR 26.9): %s", line, plain(r))
+		}
+	}
+	te.must("meet log Pia 1.83 x jumpoff")
+	contains(t, te.must("standings"), "Jump-off at 1.83: to jump Quin (one attempt, TR 26.9)")
+	te.must("meet log Quin 1.83 x jumpoff")
+	contains(t, te.must("standings"), "Jump-off: both failed at 1.83, so the bar goes down to 1.81 (TR 26.9); to jump Pia, Quin")
+	if r := te.run("meet log Pia 1.81 - jumpoff"); r.OK() || !strings.Contains(plain(r), "no passing in a jump-off") {
+		t.Errorf("no pass in a jump-off (TR 26.9): %s", plain(r))
+	}
+	te.must("meet log Pia 1.81 o jumpoff")
+	te.must("meet log Quin 1.81 x jumpoff")
+	r := te.must("standings")
+	contains(t, r, "Pia wins at 1.80", "Pia ahead of Quin at 1.80: the jump-off for first (TR 26.9)", "2      Quin", "competition is over")
+}
+
+// TestMeetUndo: meet undo takes the sheet's own entries off, last first;
+// an entry that came from a log line is taken back by undo, which takes it
+// off the log too.
+func TestMeetUndo(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Mira height 1.78")
+	te.must("meet open Club")
+	te.must("meet add Mira")
+	te.must("meet add Gus guest")
+	te.must("meet log Gus 1.60 o")
+	te.must("log Mira 1.60 xo meet")
+	if r := te.run("meet undo"); r.Kind != bot.KindConflict || r.Example != "undo" {
+		t.Errorf("an entry from a log line: %s", plain(r))
+	}
+	te.must("undo")
+	golden(t, "meet-undo", plain(te.must("meet undo")))
+	if r := te.run("meet undo"); r.Kind != bot.KindNotFound {
+		t.Errorf("nothing left: %s", plain(r))
+	}
+	contains(t, te.must("standings"), "no height cleared yet", "Gus", "not jumped yet")
+	contains(t, te.must("history Mira"), "No jumps logged")
+}

@@ -1,6 +1,7 @@
 package meetsheet
 
 import (
+	"github.com/lathmark-team/lathmark/internal/record"
 	"github.com/lathmark-team/lathmark/internal/series"
 	"github.com/lathmark-team/lathmark/internal/standings"
 )
@@ -22,6 +23,14 @@ type State struct {
 	Waiting int
 	// Over: nobody is still in (the jump-off, if due, may follow).
 	Over bool
+	// JumpOff: the competition proper is over and a jump-off for first is
+	// on (TR 26.9): CurrentM is its height (0 before its first height is
+	// set), ToJump those still to jump there, one attempt each. After a
+	// whole round JumpOffLastM is that round's height and JumpOffUp says
+	// everyone cleared it (the bar goes up) rather than failed (down).
+	JumpOff      bool
+	JumpOffLastM float64
+	JumpOffUp    bool
 	// Started: a height was jumped. CurrentM is 0 after the start when
 	// the bar to come is not known yet (NextWhy says who chooses it).
 	Started bool
@@ -51,12 +60,14 @@ func (s *Sheet) Now() State {
 			top = sm.LastBarM
 		}
 	}
+	// gone: out of the competition proper (out, or on to a jump-off).
+	gone := func(sm series.Summary) bool { return sm.Out || len(sm.JumpOff) > 0 }
 	var st State
 	in := 0
 	roundDone := top > 0
 	for _, c := range s.Competitors {
 		sm := sums[c.Name]
-		if sm.Out {
+		if gone(sm) {
 			continue
 		}
 		in++
@@ -83,9 +94,22 @@ func (s *Sheet) Now() State {
 		cs[i] = standings.Competitor{Name: c.Name, Series: sums[c.Name]}
 	}
 	st.Standings = standings.Place(cs, st.CurrentM, s.JumpOff)
+	if st.Over && s.JumpOff {
+		var tied []string
+		for _, x := range st.Standings {
+			if x.JumpOff {
+				tied = append(tied, x.Name)
+			}
+		}
+		if len(tied) > 1 {
+			st.Over = false
+			jumpOffNow(&st, tied, sums)
+			return st
+		}
+	}
 	for _, c := range s.Competitors {
 		sm := sums[c.Name]
-		if sm.Out {
+		if gone(sm) {
 			continue
 		}
 		// Done at the bar up: it was cleared or passed there (or above).
@@ -135,4 +159,47 @@ func (s *Sheet) next(h float64, in int) (float64, string) {
 		return h + float64(hi-lo)/1000, NextSameRise
 	}
 	return 0, ""
+}
+
+// JumpOffRiseM is how far the bar moves between jump-off heights in the
+// high jump: up after more than one clears, down after all fail (TR 26.9;
+// from memory).
+const JumpOffRiseM = 0.02
+
+// jumpOffNow reads the jump-off among the competitors still tied for
+// first: one attempt each at every height, taken in turn.
+func jumpOffNow(st *State, tied []string, sums map[string]series.Summary) {
+	st.JumpOff = true
+	minK, maxK, at := -1, 0, ""
+	for _, n := range tied {
+		k := len(sums[n].JumpOff)
+		if minK < 0 || k < minK {
+			minK = k
+		}
+		if k > maxK {
+			maxK, at = k, n
+		}
+	}
+	if minK < maxK { // a round under way
+		st.CurrentM = sums[at].JumpOff[maxK-1].BarM
+		for _, n := range tied {
+			if len(sums[n].JumpOff) < maxK {
+				st.ToJump = append(st.ToJump, StillIn{n, 1})
+			}
+		}
+		return
+	}
+	for _, n := range tied {
+		st.ToJump = append(st.ToJump, StillIn{n, 1})
+	}
+	if maxK == 0 {
+		return // its first height is the officials' call
+	}
+	last := sums[at].JumpOff[maxK-1]
+	st.JumpOffLastM, st.JumpOffUp = last.BarM, last.Outcome == record.Cleared
+	if st.JumpOffUp {
+		st.CurrentM = last.BarM + JumpOffRiseM
+	} else {
+		st.CurrentM = last.BarM - JumpOffRiseM
+	}
 }
