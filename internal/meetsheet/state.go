@@ -46,7 +46,7 @@ type StillIn struct {
 const (
 	NextAnnounced = "announced"
 	NextSameRise  = "the last rise again (the rise never grows, TR 26.4)"
-	NextAlone     = "her or his choice, alone in the competition (TR 26.4 (a))"
+	NextAlone     = "chosen by the one athlete still in (TR 26.4 (a))"
 )
 
 // Now reads the sheet.
