@@ -323,3 +323,59 @@ func TestMeetUndo(t *testing.T) {
 	contains(t, te.must("standings"), "no height cleared yet", "Gus", "not jumped yet")
 	contains(t, te.must("history Mira"), "No jumps logged")
 }
+
+// TestMeetMalformed: bad meet lines on an open sheet are refused with what
+// was wrong and a correct example, within the refusal budget, and change
+// nothing stored.
+func TestMeetMalformed(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Mira height 1.78")
+	te.must("meet open Club steps 1.60 1.65")
+	te.must("meet add Mira")
+	te.must("meet add Gus guest")
+	te.must("meet log Gus 1.60 o")
+	for _, line := range []string{
+		"meet open Club", "meet open", "meet open Club steps", "meet open Club steps 1.60 9.00", "meet open Club steps 1.70 1.60",
+		"meet add", "meet add Gus guest", "meet add Mira", "meet add 9lives guest", "meet add me guest", "meet add Mira guest",
+		"meet log", "meet log Gus", "meet log Gus 1.65", "meet log Gus o", "meet log Gus 1.65 ooo", "meet log Gus 1.65 xz",
+		"meet log Gus 1,65,3 o", "meet log Gus 1.60 o", "meet log Nobody 1.60 o", "meet log Gus -1.60 o", "meet log Gus 1.62 o",
+		"meet undo now", "meet close now", "standings Gus",
+		"meet log Gus " + strings.Repeat("1.70 x ", 2) + strings.Repeat("x", 80),
+	} {
+		before := te.checksum()
+		r := te.run(line)
+		p := plain(r)
+		if r.OK() || r.Example == "" || r.Kind == bot.KindInternal {
+			t.Errorf("%q: want a refusal with an example, got %v:\n%s", line, r.Kind, p)
+		}
+		if n := strings.Count(strings.TrimRight(p, "\n"), "\n") + 1; n > 4 || len([]rune(p)) > 350 {
+			t.Errorf("%q: refusal over budget (%d lines, %d characters):\n%s", line, n, len([]rune(p)), p)
+		}
+		if te.checksum() != before {
+			t.Errorf("%q changed the store", line)
+		}
+	}
+}
+
+// TestMeetAfterForget: an athlete removed from the squad while on an open
+// sheet is not named in the standings and is filed unnamed, and the close
+// still works.
+func TestMeetAfterForget(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Mira height 1.78")
+	te.must("athlete add Ren height 1.80")
+	te.must("meet open Club")
+	te.must("meet add Mira Ren")
+	te.must("meet log Mira 1.60 o")
+	te.must("meet log Ren 1.60 xo")
+	te.must("forget Mira confirm")
+	p := plain(te.must("standings"))
+	if strings.Contains(p, "Mira") {
+		t.Errorf("a removed athlete is named:\n%s", p)
+	}
+	r := te.must("meet close")
+	if strings.Contains(plain(r), "Mira") {
+		t.Errorf("close names a removed athlete:\n%s", plain(r))
+	}
+	contains(t, te.must("history Ren"), "1.60 xo")
+}

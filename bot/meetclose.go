@@ -29,6 +29,9 @@ func runMeetClose(c *call) (Reply, error) {
 		if err != nil {
 			return err
 		}
+		if err := forgetRemoved(tx, &s); err != nil {
+			return err
+		}
 		filed := s.Filed(loc)
 		if len(filed) > 0 {
 			if err := tx.AddAttempts(filed); err != nil {
@@ -129,4 +132,26 @@ func barOrNone(m float64, imp bool) string {
 		return "none"
 	}
 	return units.Bar(m, imp)
+}
+
+// forgetRemoved turns the sheet's squad athletes whose profile was removed
+// (forget) into unnamed outsiders, so that the filed sheet keeps their
+// places but not their names, and nothing is filed for them.
+func forgetRemoved(tx Tx, s *meetsheet.Sheet) error {
+	n := 0
+	for i, comp := range s.Competitors {
+		if comp.Outsider() {
+			continue
+		}
+		_, ok, err := tx.AthleteByID(comp.AthleteID)
+		if err != nil {
+			return err
+		}
+		if !ok {
+			n++
+			s.Rename(comp.Name, fmt.Sprintf("removed-%d", n))
+			s.Competitors[i].AthleteID = 0
+		}
+	}
+	return nil
 }

@@ -26,8 +26,8 @@ func (c *call) onMeetSheet(tx Tx, ath record.Athlete, add []record.Attempt, r *R
 		return err
 	}
 	imp := imperial(team)
-	comp, ok := s.Find(ath.Name)
-	if !ok || comp.AthleteID != ath.ID {
+	comp, ok := s.FindAthlete(ath.ID)
+	if !ok {
 		r.Lines = append(r.Lines, "Not on the open sheet of "+s.Name+": meet add "+ath.Name+" puts them on it.")
 		return nil
 	}

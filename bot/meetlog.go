@@ -101,6 +101,14 @@ func runMeetLog(c *call) (Reply, error) {
 // logOnSheet enters e on s, or refuses it with the rule it breaks.
 func (c *call) logOnSheet(s *meetsheet.Sheet, e meetsheet.Entry, imp bool) error {
 	err := s.Log(e)
+	var se *meetsheet.StepError
+	if errors.As(err, &se) {
+		bs := make([]string, len(se.StepsM))
+		for i, b := range se.StepsM {
+			bs[i] = units.Bar(b, imp)
+		}
+		return usageErr(standingsExample, "not on the sheet: %s is not one of the announced heights (%s); the bar goes to those first (TR 26.4)", units.Bar(se.BarM, imp), strings.Join(bs, " "))
+	}
 	var be *meetsheet.BreachError
 	if errors.As(err, &be) {
 		return usageErr(standingsExample, "not on the sheet: %s %s %s breaks %s", be.Name, units.Bar(be.Jump.BarM, imp), be.Jump.Outcome, breachText(be.Breach, imp))

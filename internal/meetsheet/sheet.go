@@ -85,6 +85,31 @@ func (s *Sheet) Find(name string) (Competitor, bool) {
 	return Competitor{}, false
 }
 
+// FindAthlete returns the competitor who is the squad athlete id.
+func (s *Sheet) FindAthlete(id uint64) (Competitor, bool) {
+	for _, c := range s.Competitors {
+		if id != 0 && c.AthleteID == id {
+			return c, true
+		}
+	}
+	return Competitor{}, false
+}
+
+// Rename gives a competitor a new name on the sheet and in its entries
+// (a squad athlete renamed, or removed from the squad before filing).
+func (s *Sheet) Rename(old, name string) {
+	for i := range s.Competitors {
+		if strings.EqualFold(s.Competitors[i].Name, old) {
+			s.Competitors[i].Name = name
+		}
+	}
+	for i := range s.Entries {
+		if strings.EqualFold(s.Entries[i].Name, old) {
+			s.Entries[i].Name = name
+		}
+	}
+}
+
 // ErrFull means the sheet already holds MaxCompetitors.
 var ErrFull = errors.New("meetsheet: the sheet is full")
 
@@ -160,8 +185,42 @@ func (s *Sheet) Log(e Entry) error {
 		}
 		return &BreachError{Name: c.Name, Breach: *v.Breach, Jump: e.Jumps[k]}
 	}
+	for _, j := range e.Jumps {
+		if !j.Alone && !j.JumpOff && !s.onSteps(j.BarM) {
+			return &StepError{BarM: j.BarM, StepsM: s.StepsM}
+		}
+	}
 	s.Entries = append(s.Entries, e)
 	return nil
+}
+
+// StepError is an entry at a height the meet did not announce: while the
+// announced heights last, the bar goes up only to them (TR 26.4; the
+// progression is announced before the competition, from memory). Above
+// the last one the rises are free (at least 2 cm, never larger than the
+// one before).
+type StepError struct {
+	BarM   float64
+	StepsM []float64
+}
+
+func (e *StepError) Error() string {
+	return fmt.Sprintf("meetsheet: %.2f is not an announced height", e.BarM)
+}
+
+// onSteps reports whether a bar may be set: any bar without announced
+// heights or above the last one, else one of them.
+func (s *Sheet) onSteps(barM float64) bool {
+	n := len(s.StepsM)
+	if n == 0 || mm(barM) > mm(s.StepsM[n-1]) {
+		return true
+	}
+	for _, b := range s.StepsM {
+		if mm(b) == mm(barM) {
+			return true
+		}
+	}
+	return false
 }
 
 // aloneExcept reports whether every competitor but name is out.

@@ -173,3 +173,21 @@ func TestFiled(t *testing.T) {
 		t.Errorf("an entry typed later is filed on the meet's date, got %s", d)
 	}
 }
+
+// While announced heights last, only they are jumped (TR 26.4, from
+// memory); above the last one, or for the one athlete left, any rise of at
+// least 2 cm.
+func TestAnnouncedHeights(t *testing.T) {
+	s := &Sheet{ID: "m3", StepsM: []float64{1.60, 1.65}}
+	_ = s.Add(Competitor{Name: "P"})
+	_ = s.Add(Competitor{Name: "Q"})
+	mustLog(t, s, "P", 1.60, "o")
+	var se *StepError
+	if err := s.Log(entry("P", 1.62, "o")); !errors.As(err, &se) {
+		t.Errorf("1.62 between the steps: %v", err)
+	}
+	mustLog(t, s, "P", 1.65, "o")
+	mustLog(t, s, "P", 1.68, "o") // above the last step
+	mustLog(t, s, "Q", 1.60, "xxx")
+	mustLog(t, s, "P", 1.69, "o") // alone: a 1 cm rise is hers (TR 26.4 (a))
+}
