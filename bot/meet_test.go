@@ -166,6 +166,8 @@ func TestMeetSquadThroughLogAndClose(t *testing.T) {
 	contains(t, te.must("history Ren"), "meet", "1.65 o, 1.70 o, 1.75 xo, 1.80 xxo, 1.83 xxx")
 	contains(t, te.must("history Mira"), "1.60 o, 1.65 xo, 1.70 xxx")
 	contains(t, te.must("best Ren"), "1.80 m (meet")
+	// o, o, xo, xxo, xxx: 10 take-offs (o and x, TR notation) in the week's digest.
+	contains(t, te.must("digest now"), "Take-offs Ren: 10 (10 full, 0 short approach)")
 	if r := te.run("history Gus"); r.OK() {
 		t.Errorf("a guest has no history: %s", plain(r))
 	}
