@@ -101,6 +101,9 @@ func runMeetLog(c *call) (Reply, error) {
 // logOnSheet enters e on s, or refuses it with the rule it breaks.
 func (c *call) logOnSheet(s *meetsheet.Sheet, e meetsheet.Entry, imp bool) error {
 	err := s.Log(e)
+	if errors.Is(err, meetsheet.ErrFull) {
+		return conflictErr(meetCloseExample, "the sheet holds at most %d entries; file it with meet close", meetsheet.MaxEntries)
+	}
 	var se *meetsheet.StepError
 	if errors.As(err, &se) {
 		bs := make([]string, len(se.StepsM))

@@ -1,6 +1,7 @@
 package store
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -83,7 +84,7 @@ func (t *Tx) FiledMeets(fn func(meetsheet.Sheet) error) error {
 func forEachFiled(b *bolt.Bucket, fn func(meetsheet.Sheet) error) error {
 	prefix := []byte("filed\x00")
 	c := b.Cursor()
-	for k, v := c.Seek(prefix); k != nil && len(k) > len(prefix) && string(k[:len(prefix)]) == string(prefix); k, v = c.Next() {
+	for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
 		var s meetsheet.Sheet
 		if err := json.Unmarshal(v, &s); err != nil {
 			return fmt.Errorf("store: filed meet sheet %q: %w", k, err)

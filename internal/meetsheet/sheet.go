@@ -22,8 +22,12 @@ import (
 	"github.com/lathmark-team/lathmark/internal/series"
 )
 
-// MaxCompetitors bounds a sheet (a club meet, not a championship).
-const MaxCompetitors = 40
+// MaxCompetitors and MaxEntries bound a sheet (a club meet, not a
+// championship).
+const (
+	MaxCompetitors = 40
+	MaxEntries     = 1000
+)
 
 // Sheet is one competition's sheet, stored as JSON.
 type Sheet struct {
@@ -110,7 +114,8 @@ func (s *Sheet) Rename(old, name string) {
 	}
 }
 
-// ErrFull means the sheet already holds MaxCompetitors.
+// ErrFull means the sheet already holds MaxCompetitors (Add) or
+// MaxEntries (Log).
 var ErrFull = errors.New("meetsheet: the sheet is full")
 
 // ErrTaken means the name is already on the sheet.
@@ -166,6 +171,9 @@ func (s *Sheet) Log(e Entry) error {
 	c, ok := s.Find(e.Name)
 	if !ok {
 		return fmt.Errorf("meetsheet: %s is not on the sheet", e.Name)
+	}
+	if len(s.Entries) >= MaxEntries {
+		return ErrFull
 	}
 	e.Name = c.Name
 	alone := s.aloneExcept(c.Name)
