@@ -117,7 +117,7 @@ func standingsTitle(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[st
 		return head + "no height cleared yet."
 	case len(first) == 0:
 		return head + "the leaders are not shown here; ask in a direct message."
-	case jumpOff:
+	case jumpOff && (st.JumpOff || st.Over):
 		return head + joinAnd(first) + " tied for first at " + bar + ": jump-off (TR 26.9)."
 	case tied && st.Over:
 		return head + joinAnd(first) + " " + shareVerb(len(first)) + " first at " + bar + "."
