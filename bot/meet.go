@@ -275,23 +275,3 @@ func (c *call) meetCompetitor(tx Tx, name string, guest bool, all []record.Athle
 	}
 	return meetsheet.Competitor{Name: name}, nil, nil
 }
-
-// meetHidden reports whether an athlete is kept out of what others see:
-// private athletes, and athletes under 18 without a guardian's consent on
-// file, are never named in a channel, nor to another athlete.
-func (c *call) meetHidden(a record.Athlete) bool {
-	if !keptFromChannel(a, c.now.Year()) {
-		return false
-	}
-	if c.user.AthleteID == a.ID && a.ID != 0 {
-		return false
-	}
-	return c.inChannel() || rank(c.user.Role) < rank(record.RoleCoach)
-}
-
-// keptFromChannel reports an athlete whose figures go only to the asker,
-// never into a shared channel: a private athlete, or one under 18 in year
-// without a parent's or guardian's consent on file.
-func keptFromChannel(a record.Athlete, year int) bool {
-	return a.Private || isMinor(a, year) && !a.Consent
-}
