@@ -214,6 +214,16 @@ func TestMeetPrivacy(t *testing.T) {
 			golden(t, "meet-standings-channel", p)
 		}
 	}
+	if p := plain(te.asIn("U_REN", "C_JUMPS", false, "meet log Ren 1.65 o")); !strings.Contains(p, "needs the role") {
+		t.Errorf("an athlete may not enter on the sheet:\n%s", p)
+	}
+	te.must("athlete link Mira <@U_MIRA>")
+	if p := plain(te.asIn("U_MIRA", "C_JUMPS", false, "standings")); strings.Contains(p, "Mira") {
+		t.Errorf("a private athlete asking in a channel is not named there either:\n%s", p)
+	}
+	if p := plain(te.asIn("U_MIRA", "", true, "standings")); !strings.Contains(p, "Mira") || strings.Contains(p, "Tia") {
+		t.Errorf("in a direct message a private athlete sees herself, not the minor:\n%s", p)
+	}
 	p := plain(te.asIn("U_COACH", "D_COACH", true, "standings"))
 	if !strings.Contains(p, "Mira") || !strings.Contains(p, "Tia") {
 		t.Errorf("a coach in a direct message sees everyone:\n%s", p)

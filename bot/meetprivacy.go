@@ -7,15 +7,17 @@ import (
 
 // meetHidden reports whether an athlete is kept out of what others see:
 // private athletes, and athletes under 18 without a guardian's consent on
-// file, are never named in a channel, nor to another athlete.
+// file, are never named in a channel (even when they ask themselves), nor
+// to another athlete in a direct message.
 func (c *call) meetHidden(a record.Athlete) bool {
 	if !keptFromChannel(a, c.now.Year()) {
 		return false
 	}
-	if c.user.AthleteID == a.ID && a.ID != 0 {
-		return false
+	if c.inChannel() {
+		return true // whoever asks, the channel reads it
 	}
-	return c.inChannel() || rank(c.user.Role) < rank(record.RoleCoach)
+	self := c.user.AthleteID == a.ID && a.ID != 0
+	return !self && rank(c.user.Role) < rank(record.RoleCoach)
 }
 
 // keptFromChannel reports an athlete whose figures go only to the asker,
