@@ -250,8 +250,7 @@ func runMeetAdd(c *call) (Reply, error) {
 // (case-insensitive), or with guest (or when no squad name is close) a
 // competitor from outside the squad, named as typed.
 func (c *call) meetCompetitor(tx Tx, name string, guest bool, all []record.Athlete) (meetsheet.Competitor, *record.Athlete, error) {
-	ex := "meet add " + name + " guest"
-	if err := checkName(name, ex); err != nil {
+	if err := checkName(name, meetAddExample); err != nil {
 		return meetsheet.Competitor{}, nil, err
 	}
 	a, ok, err := tx.AthleteByName(name)

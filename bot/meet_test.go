@@ -391,3 +391,28 @@ func TestMeetAfterForget(t *testing.T) {
 	}
 	contains(t, te.must("history Ren"), "1.60 xo")
 }
+
+// TestMeetStandingsBudget: a full club field keeps the short standings
+// within the list budget (16 lines, 1600 characters; DEVELOPERS.md), with
+// the rest behind `standings more`.
+func TestMeetStandingsBudget(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("meet open Big field steps 1.50 1.55 1.60 1.65 1.70 1.73 1.75")
+	marks := []string{"o", "xo", "xxo", "o", "xo", "o", "xxo", "xo", "o", "xo", "xxo", "o"}
+	for i, m := range marks {
+		name := "G" + itoa(i+1)
+		te.must("meet add " + name + " guest")
+		te.must("meet log " + name + " 1.50 " + marks[(i+3)%len(marks)] + " 1.55 " + m + " 1.60 xxx")
+	}
+	p := plain(te.must("standings"))
+	lines := strings.Count(strings.TrimRight(p, "\n"), "\n") + 1
+	if lines > 16 || len([]rune(p)) > 1600 || !strings.Contains(p, "standings more") {
+		t.Errorf("short standings: %d lines, %d characters:\n%s", lines, len([]rune(p)), p)
+	}
+	full := plain(te.must("standings more"))
+	for i := range marks {
+		if !strings.Contains(full, " G"+itoa(i+1)+" ") {
+			t.Errorf("more lacks G%d:\n%s", i+1, full)
+		}
+	}
+}

@@ -10,8 +10,12 @@ import (
 	"github.com/lathmark-team/lathmark/internal/units"
 )
 
-// standingsMaxRows is how many rows the short standings show.
-const standingsMaxRows = 8
+// The short standings show at most this many rows and tie notes, so that
+// they keep to the list budget (DEVELOPERS.md); `standings more` has all.
+const (
+	standingsMaxRows = 7
+	standingsMaxTies = 3
+)
 
 func runStandings(c *call) (Reply, error) {
 	if len(c.args) > 0 {
@@ -53,6 +57,9 @@ func ordinal(n int) string {
 }
 
 func standingsReply(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[string]bool) Reply {
+	if len(s.Competitors) == 0 {
+		return Reply{Title: s.Name + " (" + s.Date + "): nobody on the sheet yet.", Example: meetAddExample}
+	}
 	r := Reply{Title: standingsTitle(s, st, imp, hide), Caution: meetCaution}
 	full := &Table{Header: []string{"place", "name", "best", "jumps at best", "failures to best", "heights"}}
 	short := &Table{Header: []string{"place", "name", "best", "heights"}}
@@ -79,14 +86,16 @@ func standingsReply(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[st
 			short.Rows = append(short.Rows, []string{place, x.Name, best, heights})
 		}
 	}
-	notes := tieNotes(st.Standings, imp, hide)
-	notes = append(notes, roundLine(st, imp, hide))
+	ties := tieNotes(st.Standings, imp, hide)
+	tail := []string{roundLine(st, imp, hide)}
 	if masked > 0 {
-		notes = append(notes, fmt.Sprintf("%s not shown here (private or under 18): ask in a direct message.", plural(masked, "squad athlete")))
+		tail = append(tail, fmt.Sprintf("%s not shown here (private or under 18): ask in a direct message.", plural(masked, "squad athlete")))
 	}
-	r.Table, r.Notes = short, notes
-	if len(full.Rows) > len(short.Rows) {
-		r.Notes = append(r.Notes, fmt.Sprintf("%d more: standings more.", len(full.Rows)-len(short.Rows)))
+	notes := append(append([]string(nil), ties...), tail...)
+	r.Table = short
+	r.Notes = append(append([]string(nil), ties[:min(len(ties), standingsMaxTies)]...), tail...)
+	if more := len(full.Rows) - len(short.Rows) + len(ties) - min(len(ties), standingsMaxTies); more > 0 {
+		r.Notes = append(r.Notes, fmt.Sprintf("%s more: standings more.", plural(more, "line")))
 	}
 	d := r
 	d.Table, d.Notes = full, append(append([]string(nil), notes...), "Ties: fewest jumps at the height of the tie (TR 26.8.1), then fewest failures up to and including the last height cleared (TR 26.8.2), then an equal place, or a jump-off for first where the meet uses one (TR 26.8.3, TR 26.9).")
@@ -151,8 +160,11 @@ func tieNotes(ss []standings.Standing, imp bool, hide map[string]bool) []string 
 			if len(group) > 0 {
 				out = append(out, fmt.Sprintf("%s %s %s at %s: %s.", joinAnd(group), shareVerb(len(group)), ordinal(x.Place), units.Bar(x.BestM, imp), what))
 			}
-		case x.Rule != "" && x.Behind != "" && !hide[x.Name] && !hide[x.Behind]:
-			out = append(out, fmt.Sprintf("%s ahead of %s at %s: %s.", x.Name, x.Behind, units.Bar(x.BestM, imp), x.Rule))
+			if last := ss[i]; len(group) > 0 && last.NextRule != "" && !hide[last.Behind] {
+				out = append(out, fmt.Sprintf("%s ahead of %s at %s: %s.", joinAnd(group), last.Behind, units.Bar(last.BestM, imp), last.NextRule))
+			}
+		case x.NextRule != "" && x.Behind != "" && !hide[x.Name] && !hide[x.Behind]:
+			out = append(out, fmt.Sprintf("%s ahead of %s at %s: %s.", x.Name, x.Behind, units.Bar(x.BestM, imp), x.NextRule))
 		}
 	}
 	return out

@@ -40,10 +40,13 @@ type Standing struct {
 	AttemptsAtBest int
 	FailuresToBest int // failures up to and including the best height
 	// Rule is the rule that placed this competitor ahead of the next one
-	// (Behind names them) when both cleared the same best height; "" when
-	// the height decided or nobody follows. RuleEqual when shared.
-	Rule   string
-	Behind string
+	// when both cleared the same best height; "" when the height decided
+	// or nobody follows. RuleEqual (or RuleJumpOff) when shared.
+	Rule string
+	// Behind names the next competitor when a tie rule, not the height,
+	// put this one (and any equal to it) ahead, and NextRule is that rule;
+	// for a competitor not sharing a place NextRule is Rule.
+	Behind, NextRule string
 	Shared bool // an equal place
 	// JumpOff: tied for first, the meet uses a jump-off and it has not
 	// decided yet.
@@ -120,20 +123,20 @@ func Place(cs []Competitor, currentM float64, jumpOff bool) []Standing {
 		if ss[i].BestM == 0 {
 			continue
 		}
+		if i+1 < len(ss) && ss[i+1].BestM > 0 {
+			if _, rule := compare(ss[i], ss[i+1]); rule != "" && rule != RuleEqual {
+				ss[i].NextRule, ss[i].Behind = rule, ss[i+1].Name
+			}
+		}
 		if i > 0 {
 			if d, _ := compare(ss[i-1], ss[i]); d == 0 {
 				ss[i].Place, ss[i].Shared, ss[i-1].Shared = ss[i-1].Place, true, true
 				ss[i].Rule, ss[i-1].Rule = RuleEqual, RuleEqual
-				ss[i-1].Behind = ""
 				continue
 			}
 		}
 		ss[i].Place = i + 1
-		if i+1 < len(ss) && ss[i+1].BestM > 0 {
-			if _, rule := compare(ss[i], ss[i+1]); rule != "" && rule != RuleEqual {
-				ss[i].Rule, ss[i].Behind = rule, ss[i+1].Name
-			}
-		}
+		ss[i].Rule = ss[i].NextRule
 	}
 	if jumpOff {
 		n := 0
@@ -141,7 +144,11 @@ func Place(cs []Competitor, currentM float64, jumpOff bool) []Standing {
 			n++
 		}
 		if n > 1 {
+			behind, rule := ss[n-1].Behind, ss[n-1].NextRule
 			settleJumpOff(ss[:n], offs)
+			if ss[n-1].Behind == "" {
+				ss[n-1].Behind, ss[n-1].NextRule = behind, rule // the group against the next
+			}
 		}
 	}
 	return ss
@@ -197,7 +204,7 @@ func settleJumpOff(tied []Standing, offs map[string][]series.Attempt) {
 	out := make([]Standing, len(tied))
 	for p, i := range idx {
 		out[p] = tied[i]
-		out[p].Behind, out[p].Shared = "", false
+		out[p].Behind, out[p].NextRule, out[p].Shared = "", "", false
 		if p > 0 && key(idx[p-1]) == key(i) {
 			out[p].Place, out[p].Shared, out[p-1].Shared = out[p-1].Place, true, true
 		} else {
@@ -211,7 +218,7 @@ func settleJumpOff(tied []Standing, offs map[string][]series.Attempt) {
 		case out[p].Shared:
 			out[p].Rule = RuleEqual
 		case p+1 < len(out):
-			out[p].Rule, out[p].Behind = RuleWonOff, out[p+1].Name
+			out[p].Rule, out[p].NextRule, out[p].Behind = RuleWonOff, RuleWonOff, out[p+1].Name
 		default:
 			out[p].Rule = ""
 		}

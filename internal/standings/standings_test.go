@@ -161,3 +161,24 @@ func TestStillIn(t *testing.T) {
 		t.Errorf("still in: %+v", by)
 	}
 }
+
+// A shared place is still separated from the competitor after it by the
+// tie rules: A, E and I share second (TR 26.8.3) and are ahead of B by
+// fewest failures (TR 26.8.2: 0 against 1).
+func TestSharedGroupAheadOfNext(t *testing.T) {
+	got := Place([]Competitor{
+		comp(t, "B", "1.50 xo 1.55 xo"),
+		comp(t, "A", "1.50 o 1.55 xo"),
+		comp(t, "C", "1.50 o 1.55 o"),
+		comp(t, "E", "1.50 o 1.55 xo"),
+	}, 0, false)
+	if got[0].Name != "C" || got[0].Rule != RuleAttempts || got[1].Place != 2 || got[2].Place != 2 || got[3].Place != 4 {
+		t.Fatalf("places: %+v", got)
+	}
+	if g := got[2]; g.Rule != RuleEqual || g.NextRule != RuleFailures || g.Behind != "B" {
+		t.Errorf("the group's last against B: %+v", g)
+	}
+	if g := got[1]; g.NextRule != "" || g.Behind != "" {
+		t.Errorf("within the group no rule separates: %+v", g)
+	}
+}
