@@ -47,7 +47,7 @@ type Standing struct {
 	// put this one (and any equal to it) ahead, and NextRule is that rule;
 	// for a competitor not sharing a place NextRule is Rule.
 	Behind, NextRule string
-	Shared bool // an equal place
+	Shared           bool // an equal place
 	// JumpOff: tied for first, the meet uses a jump-off and it has not
 	// decided yet.
 	JumpOff bool
