@@ -6,6 +6,11 @@
 // TR 26.9, where the meet uses one). It also says who is still in and with
 // how many attempts at the current height.
 //
+// The second rule counts failures only up to and including the height last
+// cleared, as the rule text and issue 18 say; the one-line summary in the
+// shared reference notes ("fewest failures in the whole competition") is
+// looser, and TestFailuresAboveBestDoNotCount pins the reading used here.
+//
 // It reads each competitor through the series engine (internal/series):
 // the rules of one athlete's series and the figures the tie rules compare
 // come from series.Summarize, so there is one rule engine. The package is
