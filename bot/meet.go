@@ -103,6 +103,8 @@ func parseMeetOpen(args []token, today string) (meetOpenArgs, error) {
 			if len(o.stepsM) == 0 {
 				return o, usageErr(meetOpenExample, "steps needs the meet's heights after it")
 			}
+		case isBarHeight(w.Raw):
+			return o, usageErr(meetOpenExample, "%q: put steps before the meet's heights", w.Raw)
 		default:
 			name = append(name, w.Raw)
 		}
@@ -127,6 +129,12 @@ func isDateWord(w string) bool {
 
 // logBarWord reports whether a word is meant as a bar height.
 func logBarWord(w string) bool { return w != "" && (w[0] >= '0' && w[0] <= '9' || w[0] == '.') }
+
+// isBarHeight reports a word that reads as a bar height (1.60, 160cm, 5-3).
+func isBarHeight(w string) bool {
+	_, err := meetBar(w)
+	return logBarWord(w) && err == nil
+}
 
 // meetBar reads one bar height of the sheet.
 func meetBar(w string) (float64, error) {

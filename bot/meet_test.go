@@ -98,6 +98,7 @@ func TestMeetOpenRules(t *testing.T) {
 		{"meet open Club steps 1.60 1.63 1.67", "larger than the rise before"},
 		{"meet open 2026-12-01", "name the meet"},
 		{"meet open Club 2026-13-01", "not a date"},
+		{"meet open Club 1.60 1.65", "put steps before"},
 		{"meet add Bea guest", "no meet sheet is open"},
 		{"standings", "no meet sheet is open"},
 	} {
@@ -106,6 +107,8 @@ func TestMeetOpenRules(t *testing.T) {
 		}
 	}
 	golden(t, "meet-open", plain(te.must("meet open Club night steps 1.60 1.65 1.70 1.73 1.75 jumpoff")))
+	te.must("meet close")
+	contains(t, te.must("meet open Champs 2026"), "Sheet open: Champs 2026") // a year is part of a name, not a bar
 	if r := te.run("meet open Other"); r.Kind != bot.KindConflict || !strings.Contains(plain(r), "one sheet at a time") {
 		t.Errorf("second sheet: %s", plain(r))
 	}
