@@ -145,6 +145,9 @@ func TestMeetSquadThroughLogAndClose(t *testing.T) {
 	}
 	te.must("log Mira 1.70 x meet")
 	contains(t, te.must("undo"), "Taken off the sheet of Club night too")
+	te.advance(24 * 3600e9)
+	contains(t, te.must("log Mira 1.60 o meet"), "The open sheet (Club night) is for 2026-11-25; this line is not on it.")
+	te.must("undo")
 	if r := te.run("meet log Ren 1.65 o 1.70 o 1.75 xo 1.80 xxo 1.83 xxx"); !r.OK() {
 		t.Fatalf("Ren: %s", plain(r))
 	}

@@ -11,8 +11,9 @@ import (
 // meet line (log NAME ... meet) for a squad athlete on the open sheet goes
 // on the sheet too, checked there by the competition rules; a line the
 // sheet refuses is refused whole (nothing is logged). add holds the line's
-// stored attempts (keys assigned). Practice lines, athletes' own lines and
-// athletes not on the sheet leave the sheet alone.
+// stored attempts (keys assigned). Practice lines, athletes' own lines,
+// athletes not on the sheet and days other than the sheet's leave the
+// sheet alone.
 func (c *call) onMeetSheet(tx Tx, ath record.Athlete, add []record.Attempt, r *Reply) error {
 	if len(add) == 0 || !add[0].Meet || rank(c.user.Role) < rank(record.RoleCoach) {
 		return nil
@@ -21,11 +22,15 @@ func (c *call) onMeetSheet(tx Tx, ath record.Athlete, add []record.Attempt, r *R
 	if err != nil || !ok {
 		return err
 	}
-	team, err := tx.Team()
+	team, loc, err := teamAndZone(tx)
 	if err != nil {
 		return err
 	}
 	imp := imperial(team)
+	if today := c.now.In(loc).Format("2006-01-02"); s.Date != today {
+		r.Lines = append(r.Lines, "The open sheet ("+s.Name+") is for "+s.Date+"; this line is not on it.")
+		return nil
+	}
 	comp, ok := s.FindAthlete(ath.ID)
 	if !ok {
 		r.Lines = append(r.Lines, "Not on the open sheet of "+s.Name+": meet add "+ath.Name+" puts them on it.")
