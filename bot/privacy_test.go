@@ -266,3 +266,74 @@ func plainNoDirect(r bot.Reply) string {
 	r.Direct = nil
 	return shownText(r)
 }
+
+// TestConsentHeadCoachOnlyAndAudited: only a head coach records a
+// guardian's consent; the change is in the audit trail, and from then on
+// the minor appears in the channel's squad list.
+func TestConsentHeadCoachOnlyAndAudited(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Tom height 1.65 born 2012")
+	te.must("role coach <@U_COACH>")
+	inChannel := func(user, line string) bot.Reply {
+		te.seq++
+		return te.E.Handle(context.Background(), bot.Request{UserID: user, Text: line, Time: te.now, Channel: "CTEAM00001", MessageID: "c" + itoa(te.seq)})
+	}
+	if r := inChannel(coach, "athletes"); strings.Contains(plain(r), "Tom") || !strings.Contains(plain(r), "1 more athlete not shown") {
+		t.Errorf("a minor without consent in the channel list:\n%s", plain(r))
+	}
+	r := te.as(coach, "athlete set Tom consent yes")
+	if r.Kind != bot.KindForbidden || !strings.Contains(plain(r), "needs the role head coach") {
+		t.Fatalf("a coach recording consent:\n%s", plain(r))
+	}
+	if r := te.as(coach, "athlete add Zed height 1.70 born 2013 consent yes"); r.Kind != bot.KindForbidden {
+		t.Errorf("a coach adding a minor with consent: %v", r.Kind)
+	}
+	r = te.must("athlete set Tom consent yes")
+	contains(t, r, "Guardian consent", "recorded")
+	contains(t, te.must("audit Tom"), "athlete set")
+	if p := plain(te.must("audit Tom")); !strings.Contains(p, "consent") {
+		t.Errorf("the audit trail does not show the consent:\n%s", p)
+	}
+	if r := inChannel(coach, "athletes"); !strings.Contains(plain(r), "Tom") || r.Ephemeral {
+		t.Errorf("a minor with consent stays out of the channel list:\n%s", plain(r))
+	}
+	if r := te.run("athlete set Tom consent maybe"); r.Kind != bot.KindUsage || !strings.Contains(plain(r), "yes or no") {
+		t.Errorf("consent maybe: %s", plain(r))
+	}
+}
+
+// TestAthleteSeesOwnLineAndCoaches: `athletes` for an athlete is their own
+// line and who their coaches are; for a member with no athlete linked, who
+// the coaches are.
+func TestAthleteSeesOwnLineAndCoaches(t *testing.T) {
+	f := newPrivacyFixture(t)
+	r := f.run(athlete, "athletes", false)
+	contains(t, r, "Mira", "Your coaches: U_HEAD, U_COACH")
+	for _, other := range []string{"Kai", "Lena", "Ines", "Tom", "2.01"} {
+		if strings.Contains(plain(r), other) {
+			t.Errorf("an athlete's squad list shows %s:\n%s", other, plain(r))
+		}
+	}
+	for _, line := range []string{"athlete Kai", "history Kai", "best Kai", "export csv Kai", "audit Kai", "chart Kai", "season Kai", "plan Kai", "compare Mira Kai"} {
+		r := f.run(athlete, line, false)
+		if r.Kind != bot.KindForbidden || !(strings.Contains(plain(r), "coach")) {
+			t.Errorf("%q by an athlete: %v\n%s", line, r.Kind, plain(r))
+		}
+	}
+}
+
+// TestProfileNeverInChannel: a profile (birth year, notes, mass) goes to
+// the asker alone in a channel, whoever asks, also when it is added or
+// changed there.
+func TestProfileNeverInChannel(t *testing.T) {
+	f := newPrivacyFixture(t)
+	for _, c := range []struct{ who, line string }{
+		{head, "athlete Mira"}, {coach, "athlete Mira"}, {athlete, "athlete me"},
+		{coach, "athlete set Mira mass 62"}, {coach, "athlete add Zed height 1.80 born 1990 notes knee"},
+	} {
+		r := f.run(c.who, c.line, true)
+		if !r.OK() || !r.Ephemeral {
+			t.Errorf("%s %q in a channel: ok %v, ephemeral %v", c.who, c.line, r.OK(), r.Ephemeral)
+		}
+	}
+}

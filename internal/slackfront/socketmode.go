@@ -57,7 +57,7 @@ func (f *Front) serveSocket(ctx context.Context) error {
 			case err == nil:
 				return errors.New("slack: socket mode stopped without a reason")
 			default:
-				return socketFatal(f.cfg.APIURL, err)
+				return socketFatal(RedactURL(f.cfg.APIURL), err)
 			}
 		}
 	}
@@ -103,7 +103,7 @@ func (f *Front) onSocketEvent(ctx context.Context, sm *socketmode.Client, acc *a
 		if ce, ok := ev.Data.(*slack.ConnectionErrorEvent); ok {
 			var se slack.SlackErrorResponse
 			if errors.As(ce.ErrorObj, &se) && fatalAuthCode(se.Err) {
-				return socketFatal(f.cfg.APIURL, ce.ErrorObj)
+				return socketFatal(RedactURL(f.cfg.APIURL), ce.ErrorObj)
 			}
 			f.log.Warn("socket mode connection failed; retrying with backoff", "attempt", ce.Attempt, "backoff", ce.Backoff, "err", ce.ErrorObj)
 		}
