@@ -60,10 +60,10 @@ func New(cfg Config) (*Front, error) {
 	cfg.Logger = slog.New(NewRedactHandler(cfg.Logger.Handler(), red))
 	f := &Front{
 		redact: red,
-		cfg:   cfg,
-		mode:  mode,
-		log:   cfg.Logger.With("component", "slack", "mode", mode.String()),
-		ready: make(chan struct{}),
+		cfg:    cfg,
+		mode:   mode,
+		log:    cfg.Logger.With("component", "slack", "mode", mode.String()),
+		ready:  make(chan struct{}),
 	}
 	f.apiURL, _ = url.Parse(cfg.APIURL) // checked in withDefaults
 	httpc := cfg.HTTPClient
