@@ -42,8 +42,8 @@ func TestEscapeText(t *testing.T) {
 // our own fences only; field values and the wide form are escaped too.
 func TestTypedMarkupCannotBreakATable(t *testing.T) {
 	r := bot.Reply{
-		Title: "Squad: 2 athletes",
-		Table: &bot.Table{Header: []string{"name", "group"}, Rows: [][]string{{"Mira", "```"}, {"Kai", "*x*_y_"}}},
+		Title:  "Squad: 2 athletes",
+		Table:  &bot.Table{Header: []string{"name", "group"}, Rows: [][]string{{"Mira", "```"}, {"Kai", "*x*_y_"}}},
 		Fields: []bot.Field{{Label: "Notes", Value: "```\n*loud* <!here>"}},
 	}
 	blocks, _ := Render(r)
