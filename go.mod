@@ -12,6 +12,8 @@ require (
 	gonum.org/v1/plot v0.17.0
 )
 
+require github.com/mtibben/confusables v0.0.0-20210201002637-9d1b0723b659
+
 require (
 	codeberg.org/go-fonts/liberation v0.5.0 // indirect
 	codeberg.org/go-latex/latex v0.2.0 // indirect

@@ -103,7 +103,7 @@ func runAthleteAdd(c *call) (Reply, error) {
 	if len(c.args) == 0 {
 		return Reply{}, usageErr(exampleAdd, "give a name and at least a height")
 	}
-	name := c.args[0].Raw
+	name := nfc(c.args[0].Raw)
 	if err := checkName(name, exampleAdd); err != nil {
 		return Reply{}, err
 	}
@@ -126,10 +126,8 @@ func runAthleteAdd(c *call) (Reply, error) {
 	}
 	var team record.Team
 	err = c.update(func(tx Tx) error {
-		if old, ok, err := tx.AthleteByName(name); err != nil {
+		if err := checkNewName(tx, name, 0, exampleAdd); err != nil {
 			return err
-		} else if ok {
-			return conflictErr("athlete "+old.Name, "there is already an athlete called %s; `athlete %s` shows the profile, or pick another name", old.Name, old.Name)
 		}
 		if team, err = tx.Team(); err != nil {
 			return err
@@ -208,6 +206,7 @@ func applyProfile(a *record.Athlete, o options, year int, example string) error 
 		a.BirthYear = y
 	}
 	if w, ok := o.word("group"); ok {
+		w = nfc(w)
 		if len(w) > 32 {
 			return usageErr(example, "group %q is longer than 32 letters", w)
 		}
@@ -429,7 +428,7 @@ func runAthleteRename(c *call) (Reply, error) {
 	if len(c.args) != 2 {
 		return Reply{}, usageErr(ex, "give the old name and the new one")
 	}
-	newName := c.args[1].Raw
+	newName := nfc(c.args[1].Raw)
 	if err := checkName(newName, ex); err != nil {
 		return Reply{}, err
 	}
@@ -440,10 +439,8 @@ func runAthleteRename(c *call) (Reply, error) {
 			return err
 		}
 		oldName = a.Name
-		if other, ok, err := tx.AthleteByName(newName); err != nil {
+		if err := checkNewName(tx, newName, a.ID, ex); err != nil {
 			return err
-		} else if ok && other.ID != a.ID {
-			return conflictErr(ex, "there is already an athlete called %s", other.Name)
 		}
 		before := a
 		a.Name = newName

@@ -242,6 +242,7 @@ func (c *call) findAthlete(tx Tx, name string) (record.Athlete, error) {
 		}
 		return a, notFoundErr("athletes", "the athlete linked to %s no longer exists", name)
 	}
+	name = nfc(name)
 	a, ok, err := tx.AthleteByName(name)
 	if err != nil || ok {
 		return a, err
@@ -249,6 +250,9 @@ func (c *call) findAthlete(tx Tx, name string) (record.Athlete, error) {
 	all, err := tx.Athletes()
 	if err != nil {
 		return a, err
+	}
+	if a, ok := athleteByFoldedName(all, name); ok {
+		return a, nil // a name stored before names were normalised
 	}
 	names := make([]string, len(all))
 	for i, x := range all {
