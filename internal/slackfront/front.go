@@ -18,16 +18,17 @@ import (
 // Front is the Slack front end. Build it with New, then call Run; PostReply
 // may be called at any time, also from other goroutines.
 type Front struct {
-	cfg    Config
-	mode   Mode
-	log    *slog.Logger
-	api    *slack.Client
-	apiURL *url.URL
-	redact Redactor // the credentials inside SLACK_API_URL, for errors and logs
-	users  Users
-	dir    *memberDirectory
-	gate   rateGate
-	busy   inflight
+	cfg     Config
+	mode    Mode
+	log     *slog.Logger
+	api     *slack.Client
+	apiURL  *url.URL
+	redact  Redactor // the credentials inside SLACK_API_URL, for errors and logs
+	notices *notices // "busy, nothing was done" answers in flight
+	users   Users
+	dir     *memberDirectory
+	gate    rateGate
+	busy    inflight
 	// transport is ours to close when Run returns (nil when the caller gave
 	// an HTTP client).
 	transport *http.Transport
@@ -59,11 +60,12 @@ func New(cfg Config) (*Front, error) {
 	// Credentials inside SLACK_API_URL never reach a log line.
 	cfg.Logger = slog.New(NewRedactHandler(cfg.Logger.Handler(), red))
 	f := &Front{
-		redact: red,
-		cfg:    cfg,
-		mode:   mode,
-		log:    cfg.Logger.With("component", "slack", "mode", mode.String()),
-		ready:  make(chan struct{}),
+		redact:  red,
+		notices: newNotices(),
+		cfg:     cfg,
+		mode:    mode,
+		log:     cfg.Logger.With("component", "slack", "mode", mode.String()),
+		ready:   make(chan struct{}),
 	}
 	f.apiURL, _ = url.Parse(cfg.APIURL) // checked in withDefaults
 	httpc := cfg.HTTPClient
@@ -144,6 +146,7 @@ func (f *Front) serve(ctx context.Context) error {
 		err = f.serveSocket(ctx)
 	}
 	p.stop(f.cfg.ShutdownTimeout, f.log)
+	f.notices.wg.Wait()
 	f.log.Info("slack front end stopped")
 	return err
 }

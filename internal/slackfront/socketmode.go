@@ -171,16 +171,22 @@ func (a *accepting) run(fn func()) {
 // acceptEnvelope stores the envelope's work in the inbox, queues it, and
 // only then acknowledges it: what Slack was told we accepted is on disk.
 // A refusal (inbox or queue full, the store failing) sends the busy
-// payload, if any, as the acknowledgement; without one the envelope stays
-// unacknowledged and Slack delivers it again later.
+// payload, if any, as the acknowledgement; without one, a full inbox is
+// acknowledged and the sender told "busy, nothing was done" (refuseBusy),
+// and otherwise the envelope stays unacknowledged and Slack delivers it
+// again later.
 func (f *Front) acceptEnvelope(ctx context.Context, sm *socketmode.Client, req *socketmode.Request, via string, at time.Time, work []inbound, busy any) {
 	var payload []byte
 	if req != nil {
 		payload = req.Payload
 	}
-	if !f.accept(ctx, via, payload, at, work) {
+	if err := f.accept(ctx, via, payload, at, work); err != nil {
 		if busy != nil {
 			f.ack(ctx, sm, req, busy)
+			return
+		}
+		if f.refuseBusy(err, work) {
+			f.ack(ctx, sm, req, nil) // the sender was told "busy, nothing was done"
 			return
 		}
 		f.log.Warn("leaving an envelope for Slack to deliver again")
