@@ -254,11 +254,7 @@ func (c *call) findAthlete(tx Tx, name string) (record.Athlete, error) {
 	if a, ok := athleteByFoldedName(all, name); ok {
 		return a, nil // a name stored before names were normalised
 	}
-	names := make([]string, len(all))
-	for i, x := range all {
-		names[i] = x.Name
-	}
-	if s, ok := nearest(name, names); ok {
+	if s, ok := nearest(name, c.suggestable(all)); ok {
 		return a, notFoundErr(replaceWord(c.req.Text, name, s), "no athlete called %q. Did you mean %s?", name, s)
 	}
 	example := "athletes"

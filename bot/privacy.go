@@ -169,3 +169,16 @@ func wordRuneAt(s string, i int) bool {
 }
 
 func isWordRune(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) }
+
+// suggestable are the athletes' names a did-you-mean may offer the
+// speaker: every name to a coach; to anyone else only their own athlete's,
+// so that a typo never tells an athlete who else is in the squad.
+func (c *call) suggestable(all []record.Athlete) []string {
+	var names []string
+	for _, a := range all {
+		if rank(c.user.Role) >= rank(record.RoleCoach) || (a.ID == c.user.AthleteID && a.ID != 0) {
+			names = append(names, a.Name)
+		}
+	}
+	return names
+}

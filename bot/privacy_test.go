@@ -337,3 +337,20 @@ func TestProfileNeverInChannel(t *testing.T) {
 		}
 	}
 }
+
+// A typo suggests only names the speaker may see: every athlete to a
+// coach, only their own to an athlete, none to anyone else.
+func TestDidYouMeanOnlyWhatTheSpeakerSees(t *testing.T) {
+	f := newPrivacyFixture(t)
+	if r := f.run(coach, "history Tomm", false); !strings.Contains(plain(r), "Did you mean Tom") {
+		t.Errorf("coach: %s", plain(r))
+	}
+	for _, who := range []string{athlete, nobody} {
+		if r := f.run(who, "history Tomm", false); hiddenWord.MatchString(plain(r)) {
+			t.Errorf("%s is told of Tom:\n%s", who, plain(r))
+		}
+	}
+	if r := f.run(athlete, "history Mirra", false); !strings.Contains(plain(r), "Did you mean Mira") {
+		t.Errorf("athlete's own typo: %s", plain(r))
+	}
+}
