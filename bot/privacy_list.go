@@ -45,7 +45,7 @@ func runAthleteList(c *call) (Reply, error) {
 	t := &Table{Header: []string{"name", "height", "pb", "group"}}
 	var left, kept []string
 	for _, a := range all {
-		if group != "" && !strings.EqualFold(a.Group, group) {
+		if group != "" && !strings.EqualFold(nfc(a.Group), nfc(group)) {
 			continue
 		}
 		if c.hidden(a) {
