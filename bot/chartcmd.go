@@ -97,7 +97,7 @@ func runChart(c *call) (Reply, error) {
 			return fmt.Errorf("chart %s: %w", ath.Name, err)
 		}
 		r = chartReply(aw, trend, span, imp)
-		r.Ephemeral = ath.Private
+		r.Ephemeral = c.hidden(ath)
 		r.Files = []File{{Name: fmt.Sprintf("lathmark-chart-%s-%s-%dw.png", fileSafe(ath.Name), week, weeks), MIME: "image/png",
 			Title: ath.Name + ", " + span, Data: png}}
 		return nil
