@@ -3,6 +3,7 @@ package bot_test
 import (
 	"context"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -264,7 +265,7 @@ func TestMeetRoles(t *testing.T) {
 				te.must("meet log Gus 1.55 o")
 			}
 			r := te.as(who, c.line)
-			if got, want := r.Kind != bot.KindForbidden, contains2(c.allowed, who); got != want {
+			if got, want := r.Kind != bot.KindForbidden, slices.Contains(c.allowed, who); got != want {
 				t.Errorf("%s %q: allowed %v, want %v:\n%s", who, c.line, got, want, plain(r))
 			}
 		}
