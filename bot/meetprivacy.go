@@ -10,7 +10,7 @@ import (
 // file, are never named in a channel (even when they ask themselves), nor
 // to another athlete in a direct message.
 func (c *call) meetHidden(a record.Athlete) bool {
-	if !keptFromChannel(a, c.now.Year()) {
+	if !hiddenInChannel(a, c.now.Year()) {
 		return false
 	}
 	if c.inChannel() {
@@ -18,13 +18,6 @@ func (c *call) meetHidden(a record.Athlete) bool {
 	}
 	self := c.user.AthleteID == a.ID && a.ID != 0
 	return !self && rank(c.user.Role) < rank(record.RoleCoach)
-}
-
-// keptFromChannel reports an athlete whose figures go only to the asker,
-// never into a shared channel: a private athlete, or one under 18 in year
-// without a parent's or guardian's consent on file.
-func keptFromChannel(a record.Athlete, year int) bool {
-	return a.Private || isMinor(a, year) && !a.Consent
 }
 
 // hiddenOnSheet names the sheet's squad athletes kept out of what this
