@@ -61,6 +61,9 @@ var budgetByGolden = []struct {
 	{"chart", "chart", confirmBudget},
 	{"hint", "log (hint)", confirmBudget},
 	{"block", "a pasted block of lines", listBudget},
+	{"meet", "the meet sheet commands", confirmBudget},
+	{"meet-standings", "standings", listBudget},
+	{"meet-err", "a meet sheet command refused", refusalBudget},
 }
 
 // TestReplyBudget renders (reads) every golden reply and fails when a

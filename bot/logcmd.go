@@ -163,7 +163,7 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 	}
 	why = append(why, plausibility(ath, add, team)...)
 	if len(why) > 0 && !ln.Confirm {
-		return Reply{}, conflictErr(typed+" confirm", "Not stored: %s. If it is right, send the line again with confirm.", strings.Join(why, "; "))
+		return Reply{}, conflictErr(typed+" confirm", "%s; nothing was logged. If it is right, send the line again with confirm.", capitalize(strings.Join(why, "; ")))
 	}
 	if breach != nil {
 		for i := range add {
@@ -233,6 +233,13 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 		r.Lines = append(r.Lines, "Stored after confirm: "+strings.Join(why, "; ")+".")
 	}
 	r.Actions = []Action{{Label: "Undo", Command: fmt.Sprintf("drop #%d", no)}}
+	// The open meet sheet takes today's lines that keep the rules; a past
+	// session or a line stored as breaking them stays off it.
+	if breach == nil && !ln.When.given() {
+		if err := c.onMeetSheet(tx, ath, add, &r); err != nil { // meet sheet (bot/meethook.go)
+			return Reply{}, err
+		}
+	}
 	return c.quietHint(tx, r, hintMeasures, measuresHintPrefix), nil
 }
 
@@ -718,4 +725,12 @@ func bestReply(ath record.Athlete, meetEver, meetYear, practiceYear []record.Att
 	}
 	r.Fields = append(r.Fields, Field{Label: fmt.Sprintf("Practice best %d", year), Value: prb})
 	return r
+}
+
+// capitalize upper-cases the first letter of a sentence.
+func capitalize(s string) string {
+	for i, r := range s {
+		return strings.ToUpper(string(r)) + s[i+len(string(r)):]
+	}
+	return s
 }

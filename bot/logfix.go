@@ -182,6 +182,9 @@ func (c *call) dropInTx(tx Tx, n uint64, confirm bool) (Reply, error) {
 		fmt.Sprintf("Removed %s: %s, logged %s.", desc, jumpPassText(old), l.Time.In(loc).Format("2006-01-02 15:04")),
 		"It had been typed: " + l.Text,
 	}}
+	if err := c.offMeetSheet(tx, l, &r); err != nil { // meet sheet (bot/meethook.go)
+		return Reply{}, err
+	}
 	if ath.ID != 0 && len(old) > 0 && old[0].Meet {
 		// Without this line, does a later line of that meet break a rule?
 		day := localDay(old[0].Time, loc)
@@ -317,7 +320,7 @@ func (c *call) fixInTx(tx Tx, n uint64, rest []token) (Reply, error) {
 	}
 	why = append(why, plausibility(ath, add, team)...)
 	if len(why) > 0 && !ln.Confirm {
-		return Reply{}, conflictErr(typed+" confirm", "Not changed: %s. If it is right, send the fix again with confirm.", strings.Join(why, "; "))
+		return Reply{}, conflictErr(typed+" confirm", "%s; nothing was changed. If it is right, send the fix again with confirm.", capitalize(strings.Join(why, "; ")))
 	}
 	for i := range add {
 		add[i].LineNo = n
@@ -412,11 +415,15 @@ func (c *call) undoLineChange(tx Tx, e record.AuditEntry, when string, confirm b
 		return Reply{}, conflictErr("undo confirm", "undo would remove %s (%s, %s); if that is what you want, send undo confirm", plural(removing, "attempt"), lineDesc(cur, curAtts, imp), when)
 	}
 	var lines []string
+	var sheet Reply // what the meet sheet says when the line comes off it
 	if e.Action != auditDrop {
 		if err := tx.DeleteAttempts(cur.Attempts); err != nil {
 			return Reply{}, err
 		}
 		if err := tx.DeleteLine(cur); err != nil {
+			return Reply{}, err
+		}
+		if err := c.offMeetSheet(tx, cur, &sheet); err != nil { // meet sheet (bot/meethook.go)
 			return Reply{}, err
 		}
 	}
@@ -468,7 +475,7 @@ func (c *call) undoLineChange(tx Tx, e record.AuditEntry, when string, confirm b
 			}
 		}
 	}
-	return Reply{Title: "Undone", Lines: lines}, nil
+	return Reply{Title: "Undone", Lines: append(lines, sheet.Lines...)}, nil
 }
 
 // settlePB recomputes the profile's personal best after a line changed:

@@ -227,7 +227,7 @@ func TestPastMeetLineKeepsLaterLinesValid(t *testing.T) {
 	te := newTestEngine(t) // 10:00 UTC
 	logAddAthlete(t, te.DB, logKai())
 	te.must("log Kai 1.90 o meet at 09:00")
-	contains(t, mustRefuse(t, te, "log Kai 1.95 o meet at 08:00", bot.KindConflict), "placed before line #1", "the bar never goes down")
+	contains(t, mustRefuse(t, te, "log Kai 1.95 o meet at 08:00", bot.KindConflict), "Placed before line #1", "the bar never goes down")
 	te.must("log Kai 1.85 o meet at 08:00")
 }
 
@@ -237,7 +237,7 @@ func TestFixKeepsLaterLinesValid(t *testing.T) {
 	logAddAthlete(t, te.DB, logKai())
 	te.must("log Kai 1.90 o meet")
 	te.must("log Kai 1.95 xxx meet")
-	contains(t, mustRefuse(t, te, "fix #1 1.90 xxx", bot.KindConflict), "placed before line #2", "already out")
+	contains(t, mustRefuse(t, te, "fix #1 1.90 xxx", bot.KindConflict), "Placed before line #2", "already out")
 	te.must("fix #1 1.90 xxo")
 }
 

@@ -102,7 +102,7 @@ func TestPlausibilityNeedsConfirm(t *testing.T) {
 	// Mira-like profile: h0 = 0.70 × 1.78 = 1.246 m; vz 3.9 m/s gives a peak
 	// of 1.246 + 3.9²/(2 × 9.80665) = 2.0215 m (projectile rise).
 	te.must("athlete add Mia height 1.78 sex f pb 1.80")
-	contains(t, mustRefuse(t, te, "log Mia 1.72 xo peak 1.95 vz 3.9", bot.KindConflict), "peak 1.95 m and vz 3.90 m/s disagree", "2.02 m")
+	contains(t, mustRefuse(t, te, "log Mia 1.72 xo peak 1.95 vz 3.9", bot.KindConflict), "Peak 1.95 m and vz 3.90 m/s disagree", "2.02 m")
 	a := te.must("log Mia 1.72 xo peak 2.01 vz 3.9")
 	contains(t, a, "so vz was used")
 	b := te.must("log Mia 1.72 xo vz 3.9")

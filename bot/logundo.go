@@ -38,6 +38,23 @@ func undoSideEffect(action string) bool {
 	return false
 }
 
+// sheetEcho reports that mine[i] is the meet sheet's entry written by a log
+// line, a drop or an undo in the same command (same time, after it): undo
+// takes back the command, whose own hook takes the line off the sheet.
+func sheetEcho(mine []record.AuditEntry, i int) bool {
+	e := mine[i]
+	if !isSheetEntry(e) {
+		return false
+	}
+	for j := i - 1; j >= 0 && mine[j].Time.Equal(e.Time); j-- {
+		switch mine[j].Action {
+		case auditLog, auditDrop, auditFix:
+			return true
+		}
+	}
+	return false
+}
+
 // entryID identifies an audit entry for undo: its time, action, subject
 // and, for a line change, the line's number.
 func entryID(e record.AuditEntry) string {
@@ -76,6 +93,7 @@ func (c *call) lastOwnChange(tx Tx) (record.AuditEntry, bool, error) {
 		mine  []record.AuditEntry
 	)
 	undone := map[string]bool{}
+	undoAt := map[int64]bool{} // times of the speaker's undos (their sheet echoes are no change of their own)
 	err := tx.AuditEntries(c.now.Add(-undoLookBack), func(e record.AuditEntry) error {
 		if e.Time.After(c.now) {
 			return nil
@@ -83,6 +101,9 @@ func (c *call) lastOwnChange(tx Tx) (record.AuditEntry, bool, error) {
 		if e.Action == auditUndo {
 			if id, ok := jsonObject(e.After)[auditUndid].(string); ok {
 				undone[id] = true
+			}
+			if actorID(e.Actor) == c.user.ID {
+				undoAt[e.Time.UnixNano()] = true
 			}
 			return nil
 		}
@@ -96,9 +117,10 @@ func (c *call) lastOwnChange(tx Tx) (record.AuditEntry, bool, error) {
 		return last, false, err
 	}
 	for i := len(mine) - 1; i >= 0; i-- {
-		if !undone[entryID(mine[i])] {
-			return mine[i], true, nil
+		if undone[entryID(mine[i])] || sheetEcho(mine, i) || isSheetEntry(mine[i]) && undoAt[mine[i].Time.UnixNano()] {
+			continue
 		}
+		return mine[i], true, nil
 	}
 	return last, found, nil
 }
@@ -259,4 +281,9 @@ func sameJSON(a, b any) bool {
 	x, err1 := json.Marshal(a)
 	y, err2 := json.Marshal(b)
 	return err1 == nil && err2 == nil && bytes.Equal(x, y)
+}
+
+// isSheetEntry is an audit entry the meet sheet writes for a log line.
+func isSheetEntry(e record.AuditEntry) bool {
+	return e.Action == auditMeetLog || e.Action == auditMeetUndo
 }

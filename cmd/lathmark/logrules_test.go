@@ -51,13 +51,13 @@ func TestTerminalLogKeepsTheRules(t *testing.T) {
 	}
 	for _, want := range []string{
 		// Ana's second meet line is refused with the rule; her best stays 1.70.
-		"Not stored: Ana was already out: three consecutive failures (1.75, 1.78, 1.78)",
+		"Ana was already out: three consecutive failures (1.75, 1.78, 1.78)",
 		"TR 26.2",
 		"Personal best:       1.70 m (meet",
 		// The real fault after a pass: only two tries left at 1.70.
 		"Bo had only two tries left at 1.70 m",
 		// Lea's 2.40 asks for confirm and stores nothing.
-		"Not stored: 2.40 m is 75.0 cm above Lea's personal best 1.65 m",
+		"2.40 m is 75.0 cm above Lea's personal best 1.65 m",
 		"No jumps logged for Lea",
 		// Three jumps and one pass.
 		"Logged for Sam (practice), line #2: 3 jumps and 1 pass",
