@@ -163,7 +163,7 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 	}
 	why = append(why, plausibility(ath, add, team)...)
 	if len(why) > 0 && !ln.Confirm {
-		return Reply{}, conflictErr(typed+" confirm", "%s; nothing was logged. If it is right, send the line again with confirm.", capitalize(strings.Join(why, "; ")))
+		return Reply{}, conflictErr(typed+" confirm", "%s; nothing was logged (if it is right, add confirm).", whyText(why))
 	}
 	if breach != nil {
 		for i := range add {

@@ -320,7 +320,7 @@ func (c *call) fixInTx(tx Tx, n uint64, rest []token) (Reply, error) {
 	}
 	why = append(why, plausibility(ath, add, team)...)
 	if len(why) > 0 && !ln.Confirm {
-		return Reply{}, conflictErr(typed+" confirm", "%s; nothing was changed. If it is right, send the fix again with confirm.", capitalize(strings.Join(why, "; ")))
+		return Reply{}, conflictErr(typed+" confirm", "%s; nothing was changed (if it is right, add confirm).", whyText(why))
 	}
 	for i := range add {
 		add[i].LineNo = n

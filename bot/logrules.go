@@ -105,8 +105,8 @@ func breachReason(b *series.Breach, name string, imp bool) string {
 			if len(carried) == 1 {
 				verb = "carries"
 			}
-			return fmt.Sprintf("%s had only %s left at %s: the failure%s at %s %s over (a pass, or moving up, does not clear failures), so three consecutive failures (%s) ended the competition and the next attempt at %s was never jumped (%s)",
-				name, countWords(b.LeftAtBar, "try", "tries"), bar, pluralS(len(carried)), strings.Join(carried, ", "), verb, strings.Join(bars, ", "), bar, tr)
+			return fmt.Sprintf("%s had only %s left at %s: the failure%s at %s %s over (TR 26.2), so a %s attempt at %s was never jumped",
+				name, countWords(b.LeftAtBar, "try", "tries"), bar, pluralS(len(carried)), strings.Join(carried, ", "), verb, ordinalWord(b.LeftAtBar+1), bar)
 		}
 		return fmt.Sprintf("%s was already out: three consecutive failures (%s) end the competition whatever the heights (%s), so nothing at %s was jumped",
 			name, strings.Join(bars, ", "), tr, bar)
@@ -165,6 +165,14 @@ func pluralS(n int) string {
 	return "s"
 }
 
+// ordinalWord writes 1 to 4 as first, second, third, fourth (then 5th...).
+func ordinalWord(n int) string {
+	if n >= 1 && n <= 4 {
+		return []string{"first", "second", "third", "fourth"}[n-1]
+	}
+	return ordinal(n)
+}
+
 // countWords writes a small count in words: "two tries", "one pass",
 // figures from ten up.
 func countWords(n int, one, many string) string {
@@ -177,4 +185,21 @@ func countWords(n int, one, many string) string {
 		return w + " " + one
 	}
 	return w + " " + many
+}
+
+// whyMaxRunes keeps a refusal inside the phone's budget for refusals
+// (DEVELOPERS.md: 350 characters with its example).
+const whyMaxRunes = 240
+
+// whyText joins the reasons a line needs confirm, the first in full and
+// the others while they fit.
+func whyText(why []string) string {
+	out := capitalize(why[0])
+	for i, w := range why[1:] {
+		if len([]rune(out))+len([]rune(w))+2 > whyMaxRunes {
+			return out + fmt.Sprintf("; and %s more", countWords(len(why)-1-i, "reason", "reasons"))
+		}
+		out += "; " + w
+	}
+	return out
 }

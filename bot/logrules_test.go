@@ -70,6 +70,7 @@ func TestPassCarriesFailures(t *testing.T) {
 	te := newTestEngine(t)
 	anaSquad(t, te)
 	w := mustRefuse(t, te, "log Bo 1.65 x- 1.70 xxx meet", bot.KindConflict)
+	golden(t, "log-err-pass-carries", plain(w))
 	contains(t, w, "Bo had only two tries left at 1.70 m", "the failure at 1.65 carries over", "TR 26.2")
 	if p := plain(w); strings.Contains(p, "Series over") || strings.Contains(p, "had already ended") {
 		t.Errorf("contradictory reply:\n%s", p)
@@ -96,6 +97,7 @@ func TestPlausibilityNeedsConfirm(t *testing.T) {
 	anaSquad(t, te)
 	w := mustRefuse(t, te, "log Lea 2.40 o", bot.KindConflict)
 	contains(t, w, "75.0 cm above Lea's personal best 1.65 m", "above the world record 2.10 m", "log Lea 2.40 o confirm")
+	golden(t, "log-err-implausible", plain(w))
 	contains(t, te.must("history Lea"), "No jumps logged")
 	te.must("log Lea 1.80 x") // exactly 15 cm above: no question
 	te.must("log Lea 1.81 x confirm")
