@@ -158,7 +158,7 @@ func (c *call) dropInTx(tx Tx, n uint64, confirm bool) (Reply, error) {
 		return Reply{}, err
 	}
 	if len(old) > undoMaxAttempts && !confirm {
-		return Reply{}, conflictErr(fmt.Sprintf("drop #%d confirm", n), "line #%d holds %s; to remove them all, send drop #%d confirm", n, plural(len(old), "attempt"), n)
+		return Reply{}, conflictErr(fmt.Sprintf("drop #%d confirm", n), "line #%d holds %s; to remove them all, send drop #%d confirm", n, jumpPassText(old), n)
 	}
 	if err := tx.DeleteAttempts(l.Attempts); err != nil {
 		return Reply{}, err
@@ -412,7 +412,7 @@ func (c *call) undoLineChange(tx Tx, e record.AuditEntry, when string, confirm b
 	}
 	removing := len(curAtts)
 	if saved == nil && removing > undoMaxAttempts && !confirm {
-		return Reply{}, conflictErr("undo confirm", "undo would remove %s (%s, %s); if that is what you want, send undo confirm", plural(removing, "attempt"), lineDesc(cur, curAtts, imp), when)
+		return Reply{}, conflictErr("undo confirm", "undo would remove %s (%s, %s); if that is what you want, send undo confirm", jumpPassText(curAtts), lineDesc(cur, curAtts, imp), when)
 	}
 	var lines []string
 	var sheet Reply // what the meet sheet says when the line comes off it
