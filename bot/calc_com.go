@@ -147,11 +147,51 @@ func runCOM(c *call) (Reply, error) {
 		r.Lines = append(r.Lines,
 			"Arc: "+comLine(ar.arc.DropM-ar.depthM, imp),
 			"Segments: "+comLine(seg.BelowUndersideM, imp),
-			fmt.Sprintf("The models differ by %s in the c.m. drop: the arc bends the whole body evenly; the segment model bends the trunk and turns the head and legs at the joints.", units.SmallAbs(ar.arc.DropM-seg.DropM, imp)))
+			fmt.Sprintf("The models differ by %s in the c.m. drop: the arc bends the whole body evenly through %s°; the segment model arches the trunk %s° and turns the head and legs at the joints.", units.SmallAbs(ar.arc.DropM-seg.DropM, imp), fmtDeg(mechanics.Degrees(ar.arc.ThetaRad)), fmtDeg(posture.TrunkArchDeg)))
 		add("Segment table", tname)
 	}
 	r.Assumptions = notes
-	return r, nil
+	return comShort(model, ar, seg, posture, b, hasArch, imp).reply(r), nil
+}
+
+// comShort is the phone-sized `com` answer: where the c.m. passes against
+// the bar with the apex touching it, and the model's arch.
+func comShort(model string, ar comArc, seg mechanics.COMResult, p mechanics.Posture, b calcBody, hasArch, imp bool) calcShort {
+	var s calcShort
+	if !hasArch {
+		s.assumed = append(s.assumed, "arch")
+	}
+	if b.depthM == 0 {
+		s.assumed = append(s.assumed, "depth")
+	}
+	arcDeg := fmtDeg(mechanics.Degrees(ar.arc.ThetaRad))
+	switch model {
+	case "arc":
+		s.verdict = capitalise(comVerdict(ar.arc.DropM-ar.depthM, imp)) + " (arc " + arcDeg + "°)"
+		s.body = []shortLine{{fmt.Sprintf("C.m. %s below the apex; underside %s below it", calcSmall(ar.arc.DropM, imp), units.SmallAbs(ar.depthM, imp)), 2}}
+	case "segments":
+		if p.Name == mechanics.Standing().Name {
+			s.verdict = fmt.Sprintf("C.m. %s above the floor, %.2f × stature", units.Length(seg.COMHeightM, imp), seg.COMHeightM/b.statureM)
+			s.assumed = nil
+			break
+		}
+		s.verdict = capitalise(comVerdict(seg.BelowUndersideM, imp)) + fmt.Sprintf(" (%s, trunk arch %s°)", p.Name, fmtDeg(p.TrunkArchDeg))
+		s.body = []shortLine{{fmt.Sprintf("C.m. %s below the apex, %s; apex on the %s", calcSmall(seg.DropM, imp), comAlongBody(seg.COM.XM, imp), seg.ApexSegment), 2}}
+	default:
+		s.verdict = fmt.Sprintf("C.m. below the bar: arc %s, segments %s", units.Small(ar.arc.DropM-ar.depthM, imp), units.Small(seg.BelowUndersideM, imp))
+		s.body = []shortLine{{fmt.Sprintf("Arc: whole body bent %s°; segments: trunk arched %s°, head and legs at the joints", arcDeg, fmtDeg(p.TrunkArchDeg)), 2},
+			{fmt.Sprintf("They differ by %s in the c.m. drop", units.SmallAbs(ar.arc.DropM-seg.DropM, imp)), 3}}
+	}
+	return s
+}
+
+// comVerdict is the short reading: "c.m. 4.9 cm below the bar" with the
+// apex touching it, or "c.m. 2.0 cm above the bar: rise that much more".
+func comVerdict(belowM float64, imp bool) string {
+	if belowM >= 0 {
+		return fmt.Sprintf("c.m. passes %s below the bar with the apex touching it", units.SmallAbs(belowM, imp))
+	}
+	return fmt.Sprintf("c.m. passes %s above the bar with the apex touching it", units.SmallAbs(belowM, imp))
 }
 
 // comDepthSource says where the segment model's depths came from.
