@@ -119,20 +119,20 @@ func runCOM(c *call) (Reply, error) {
 			add("Model", fmt.Sprintf("arc, %s bent through %s° (radius %s, ends %s apart)", units.Length(b.statureM, imp), calcNum(mechanics.Degrees(ar.arc.ThetaRad)), units.Length(ar.arc.RadiusM, imp), units.Length(ar.arc.ChordM, imp)))
 		}
 		add("C.m. below the apex", calcSmall(s, imp))
-		add("Underside below the apex (d)", units.SmallAbs(d, imp))
+		add("Underside below apex (d)", units.SmallAbs(d, imp))
 		add("C.m. vs the bar contact", comBarContact(s-d, imp))
 		r.Lines = append(r.Lines, capitalise(comLine(s-d, imp)))
 	case "segments":
 		add("Model", fmt.Sprintf("segments, %s posture, %s, %s", posture.Name, tname, units.Length(b.statureM, imp)))
 		if posture.Name == mechanics.Standing().Name {
 			// Upright, the apex is the top of the head and no bar is under it.
-			add("C.m. below the top of the head", units.Length(seg.DropM, imp))
+			add("C.m. below the head top", units.Length(seg.DropM, imp))
 			add("C.m. above the floor", fmt.Sprintf("%s = %.3f × stature", units.Length(seg.COMHeightM, imp), seg.COMHeightM/b.statureM))
 			break
 		}
 		add("C.m. below the apex", calcSmall(seg.DropM, imp))
 		add("C.m. along the body", comAlongBody(seg.COM.XM, imp))
-		add("Underside below the apex (d)", units.SmallAbs(seg.UndersideDepthM, imp))
+		add("Underside below apex (d)", units.SmallAbs(seg.UndersideDepthM, imp))
 		add("C.m. vs the bar contact", comBarContact(seg.BelowUndersideM, imp))
 		add("Apex on the", seg.ApexSegment.String())
 		r.Lines = append(r.Lines, capitalise(comLine(seg.BelowUndersideM, imp)))
@@ -141,7 +141,7 @@ func runCOM(c *call) (Reply, error) {
 		segHead := fmt.Sprintf("segments (%s)", posture.Name)
 		r.Table = &Table{Header: []string{"", arcHead, segHead}, Rows: [][]string{
 			{"c.m. below the apex", calcSmall(ar.arc.DropM, imp), calcSmall(seg.DropM, imp)},
-			{"underside below the apex (d)", units.SmallAbs(ar.depthM, imp), units.SmallAbs(seg.UndersideDepthM, imp)},
+			{"underside below apex (d)", units.SmallAbs(ar.depthM, imp), units.SmallAbs(seg.UndersideDepthM, imp)},
 			{"c.m. below the bar contact", units.Small(ar.arc.DropM-ar.depthM, imp), units.Small(seg.BelowUndersideM, imp)},
 		}}
 		r.Lines = append(r.Lines,
@@ -151,7 +151,16 @@ func runCOM(c *call) (Reply, error) {
 		add("Segment table", tname)
 	}
 	r.Assumptions = notes
-	return comShort(model, ar, seg, posture, b, hasArch, imp).reply(r), nil
+	var flags []rangeNote
+	if f, bad := mechanics.CheckRange(mechanics.QArch, arch, mechanics.SexUnknown); hasArch && bad {
+		flags = append(flags, rangeNoteOf(f))
+		r.Lines = append(r.Lines, fullFlags(flags)...)
+	}
+	short := comShort(model, ar, seg, posture, b, hasArch, imp)
+	if l := checkLine(flags); l != "" {
+		short.body = append(short.body, shortLine{l, 0})
+	}
+	return short.reply(r), nil
 }
 
 // comShort is the phone-sized `com` answer: where the c.m. passes against

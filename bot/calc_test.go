@@ -655,25 +655,68 @@ func TestCalcLocalGravity(t *testing.T) {
 // Issue 14's lines. Check (Dapena 1980: the c.m. peaks close to the bar
 // plane; take-off 0.9–1.3 m from it, from memory): with no horizontal
 // speed typed, a take-off 1.0 m out gets no advice to move 30 cm or more,
-// and the reply says which speed across the bar it assumed; with speed 4.0
-// angle 37 the bar plane is reached at 4.0·sin 37° = 2.41 m/s (hand
-// computation); implausible values carry a one-line flag naming the range.
+// and the reply says which speed across the bar it assumed, g·D/vz =
+// 9.80665 × 1.0/4.4 = 2.23 m/s (hand computation); with speed 4.0 angle 37
+// the bar plane is reached at 4.0·sin 37° = 2.41 m/s (hand computation);
+// implausible values carry a one-line flag naming the range.
 func TestCalcTakeoffDirectionLines(t *testing.T) {
 	te := calcEngine(t)
-	r := te.more("margin 2.00 v 4.4 h0 1.25 height 1.86 from 1.0")
-	txt := plain(r)
-	if strings.Contains(txt, "further out") || strings.Contains(txt, "closer in") {
-		t.Errorf("take-off move advised for a take-off inside the published range:\n%s", txt)
+	line := "margin 2.00 v 4.4 h0 1.25 height 1.86 from 1.0"
+	for _, r := range []bot.Reply{te.run(line), te.more(line)} {
+		txt := plain(r)
+		for _, m := range regexp.MustCompile(`([0-9.]+) (cm|m) (further out|closer in)`).FindAllStringSubmatch(txt, -1) {
+			v, _ := strconv.ParseFloat(m[1], 64)
+			if m[2] == "m" || v >= 30 {
+				t.Errorf("take-off move of %s %s advised for a take-off inside the published range:\n%s", m[1], m[2], txt)
+			}
+		}
 	}
-	if !strings.Contains(txt, "speed across the bar assumed 2.23 m/s") {
-		t.Errorf("assumed speed across the bar not stated:\n%s", txt)
+	contains(t, te.more(line), "speed across the bar assumed 2.23 m/s")
+	contains(t, te.run(line), "assumed speed across the bar")
+	contains(t, te.more("margin 2.00 v 4.4 h0 1.25 height 1.86 from 1.0 speed 4.0 angle 37"), "at 2.41 m/s across the bar", "= 4.00 m/s × sin 37°")
+
+	// Flags, one line each, naming the published range (ranges.go rows).
+	for _, c := range []struct{ line, want string }{
+		{"margin 2.00 v 6.5 h0 1.25 height 1.86", "vz 6.50 m/s far above 3.9–4.7 m/s"},
+		{"margin 2.00 v 6.5 h0 1.25 height 1.86", "above the 2.45 m world record"}, // men's record, from memory
+		{"jump test 1.0", "jump-test flight time 1.00 s above 0.55–0.8 s"},
+		{"flight v 4.4 h0 1.25 across 8", "speed across the bar 8.00 m/s far above 2–2.6 m/s"},
+	} {
+		r := te.run(c.line)
+		checkShort(t, c.line, r)
+		contains(t, r, c.want)
 	}
-	r = te.more("margin 2.00 v 4.4 h0 1.25 height 1.86 from 1.0 speed 4.0 angle 37")
-	if txt = plain(r); !strings.Contains(txt, "at 2.41 m/s") {
-		t.Errorf("bar plane not from 4.0·sin 37° = 2.41 m/s:\n%s", txt)
+	// The flight shows its flight angle: with across 8 it is at most
+	// atan(4.4/8) = 28.8° (hand computation).
+	contains(t, te.more("flight v 4.4 h0 1.25 across 8"), "Flight angle:", "29° = atan(vz/vx), at most")
+
+	// An assumed h0 widens the ± and is named as the largest assumption.
+	assumed, typed := te.more("margin 2.00 v 4.4 height 1.86"), te.more("margin 2.00 v 4.4 h0 1.30 height 1.86")
+	sa, st := calcNums(t, calcField(t, assumed, "Margin"))[1], calcNums(t, calcField(t, typed, "Margin"))[1]
+	if sa <= st {
+		t.Errorf("± with h0 assumed %.1f cm, typed %.1f cm: want the assumed one wider", sa, st)
 	}
-	r = te.more("margin 2.00 v 6.5 h0 1.25 height 1.86")
-	if txt = plain(r); !strings.Contains(txt, "4.3–4.7 m/s measured in elite men") && !strings.Contains(txt, "measured in elite") {
-		t.Errorf("vz 6.5 m/s not flagged:\n%s", txt)
+	contains(t, te.run("margin 2.00 v 4.4 height 1.86"), "(h0 most): give h0")
+
+	// Times from phone video: 108 frames at 240 fps = 0.45 s, vz = g·T =
+	// 9.80665 × 0.45 = 4.41 m/s; one frame is 1/240 s = 4.2 ms (hand
+	// computation).
+	contains(t, te.run("flight up 108 frames at 240fps"), "vz 4.41 m/s", "4.2 ms")
+	contains(t, te.more("flight up 108 frames at 240fps"), "4.41 m/s ± 0.04 = g·T")
+	// 125 frames at 240 fps = 0.5208 s: h = g·t²/8 = 33.2 cm (Bosco et al. 1983).
+	calcNear(t, "flight time in frames (cm)", calcNums(t, calcField(t, te.more("flight time 125 frames at 240 fps"), "Jump height"))[0], calcG*0.520833*0.520833/8*100, 0.06)
+	// 30 frames at 120 fps = 0.25 s: h = 7.7 cm, ± g·t·(1/120)/4 = 0.51 cm.
+	jt := calcNums(t, calcField(t, te.more("jump test 30 frames at 120fps"), "Jump height"))
+	calcNear(t, "jump test in frames (cm)", jt[0], calcG*0.25*0.25/8*100, 0.06)
+	calcNear(t, "jump test frame ± (cm)", jt[1], calcG*0.25/120/4*100, 0.06)
+
+	// "Too close to call" never advises a move.
+	if txt := plain(te.more("margin 1.80 v 4.3 h0 1.20 height 1.78 from 2.0")); strings.Contains(txt, "further out") || strings.Contains(txt, "closer in") {
+		t.Errorf("too close to call, yet a move is advised:\n%s", txt)
+	}
+	// The demo line of issue 17 fits the phone.
+	checkShort(t, "margin 1.80 for Mira v 4.3", te.run("margin 1.80 for Mira v 4.3"))
+	if !strings.HasPrefix(te.run("margin 1.80 for Mira v 4.3").Title, "Clears by ") {
+		t.Error("verdict not first")
 	}
 }

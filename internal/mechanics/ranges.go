@@ -3,6 +3,7 @@ package mechanics
 import (
 	"fmt"
 	"math"
+	"strings"
 )
 
 // Quantity names a value the published-range table covers.
@@ -198,8 +199,12 @@ func CheckRange(q Quantity, v float64, sex Sex) (RangeFlag, bool) {
 	if f.Above {
 		dir = "above"
 	}
-	f.Line = fmt.Sprintf("%s %s is %s%s the %s measured in %s: check the number",
-		q, formatRangeValue(v, f.Range.Unit), far, dir, formatRangeSpan(f.Range), rangeWho(f.Range))
+	seen := "measured in"
+	if strings.Contains(f.Range.Source, "common practice") {
+		seen = "usual in" // a trade figure, not a measurement
+	}
+	f.Line = fmt.Sprintf("%s %s is %s%s the %s %s %s: check the number",
+		q, formatRangeValue(v, f.Range.Unit), far, dir, formatRangeSpan(f.Range), seen, rangeWho(f.Range))
 	return f, true
 }
 
