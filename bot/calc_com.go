@@ -79,7 +79,7 @@ func runCOM(c *call) (Reply, error) {
 		a := arch
 		if !hasArch {
 			a = defaultArchDeg
-			notes = append(notes, fmt.Sprintf("arch assumed %s° (add arch DEG to set it)", calcNum(a)))
+			notes = append(notes, fmt.Sprintf("arch assumed %s° (add arch DEG to set it)", fmtDeg(a)))
 		}
 		if ar.arc, err = mechanics.NewArc(b.statureM, mechanics.Radians(a)); err != nil {
 			return Reply{}, calcErr(err, ex)
@@ -89,7 +89,7 @@ func runCOM(c *call) (Reply, error) {
 		}
 		notes = append(notes, b.notes...)
 		b.notes = nil
-		notes = append(notes, fmt.Sprintf("arc model: uniform body of length = stature %s bent through %s°", units.Length(b.statureM, imp), calcNum(a)))
+		notes = append(notes, fmt.Sprintf("arc model: uniform body of length = stature %s bent through %s°", units.Length(b.statureM, imp), fmtDeg(a)))
 	}
 	if model != "arc" {
 		table, name, tnotes, err := pickSegmentTable(o.words["table"], b.sex, calcAthleteName(env), ex)
@@ -100,7 +100,7 @@ func runCOM(c *call) (Reply, error) {
 		notes = append(notes, tnotes...)
 		if hasArch {
 			posture.TrunkArchDeg = arch
-			notes = append(notes, fmt.Sprintf("segment model: arch %s° used as the trunk arch", calcNum(arch)))
+			notes = append(notes, fmt.Sprintf("segment model: arch %s° used as the trunk arch", fmtDeg(arch)))
 		}
 		if seg, err = mechanics.BodyCOM(b.segmentBody(), posture, table); err != nil {
 			return Reply{}, calcErr(err, ex)
@@ -116,7 +116,7 @@ func runCOM(c *call) (Reply, error) {
 		if ar.arc.Straight {
 			add("Model", fmt.Sprintf("arc, %s held straight (arch 0°)", units.Length(b.statureM, imp)))
 		} else {
-			add("Model", fmt.Sprintf("arc, %s bent through %s° (radius %s, ends %s apart)", units.Length(b.statureM, imp), calcNum(mechanics.Degrees(ar.arc.ThetaRad)), units.Length(ar.arc.RadiusM, imp), units.Length(ar.arc.ChordM, imp)))
+			add("Model", fmt.Sprintf("arc, %s bent through %s° (radius %s, ends %s apart)", units.Length(b.statureM, imp), fmtDeg(mechanics.Degrees(ar.arc.ThetaRad)), units.Length(ar.arc.RadiusM, imp), units.Length(ar.arc.ChordM, imp)))
 		}
 		add("C.m. below the apex", calcSmall(s, imp))
 		add("Underside below apex (d)", units.SmallAbs(d, imp))
@@ -137,7 +137,7 @@ func runCOM(c *call) (Reply, error) {
 		add("Apex on the", seg.ApexSegment.String())
 		r.Lines = append(r.Lines, capitalise(comLine(seg.BelowUndersideM, imp)))
 	default:
-		arcHead := fmt.Sprintf("arc %s°", calcNum(mechanics.Degrees(ar.arc.ThetaRad)))
+		arcHead := fmt.Sprintf("arc %s°", fmtDeg(mechanics.Degrees(ar.arc.ThetaRad)))
 		segHead := fmt.Sprintf("segments (%s)", posture.Name)
 		r.Table = &Table{Header: []string{"", arcHead, segHead}, Rows: [][]string{
 			{"c.m. below the apex", calcSmall(ar.arc.DropM, imp), calcSmall(seg.DropM, imp)},

@@ -3,6 +3,8 @@ package bot_test
 import (
 	"context"
 	"math"
+	"os"
+	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
@@ -718,5 +720,27 @@ func TestCalcTakeoffDirectionLines(t *testing.T) {
 	checkShort(t, "margin 1.80 for Mira v 4.3", te.run("margin 1.80 for Mira v 4.3"))
 	if !strings.HasPrefix(te.run("margin 1.80 for Mira v 4.3").Title, "Clears by ") {
 		t.Error("verdict not first")
+	}
+}
+
+// TestCalcNumbersRounded: property over every calculation golden, short
+// and full: no number but standard gravity is printed with more than four decimals (an angle
+// such as 29.999999999999996° would be).
+func TestCalcNumbersRounded(t *testing.T) {
+	files, err := filepath.Glob(filepath.Join("..", "testdata", "replies", "calc-*.golden"))
+	if err != nil || len(files) == 0 {
+		t.Fatalf("no calculation goldens (%v)", err)
+	}
+	more, _ := filepath.Glob(filepath.Join("..", "testdata", "replies", "crossing-*.golden"))
+	long := regexp.MustCompile(`\d\.\d{5,}`)
+	for _, f := range append(files, more...) {
+		data, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		// Standard gravity 9.80665 m/s² is exact by definition (3rd CGPM).
+		if m := long.FindString(strings.ReplaceAll(string(data), "9.80665", "")); m != "" {
+			t.Errorf("%s prints %s", filepath.Base(f), m)
+		}
 	}
 }
