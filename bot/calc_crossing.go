@@ -14,7 +14,7 @@ const exampleCrossing = "crossing 2.00 v 4.4 h0 1.25 height 1.86 from 1.1"
 
 func crossingCommand() command {
 	return command{name: "crossing", aliases: []string{"pass"}, topic: "calc", access: anyone, details: true,
-		usage:   "crossing BAR [for ATHLETE] [v VZ] [h0 H] [height STATURE] [mass KG] [sex m|f] [from D] [across VX | speed V angle A] [arch DEG] [kick T] [spin DEG/S]",
+		usage:   "crossing BAR [for ATHLETE] [v VZ] [h0 H] [height STATURE] [mass KG] [sex m|f] [from D] [across VX | speed V angle A] [arch DEG] [kick T (s, or N frames at F fps)] [spin DEG/S]",
 		example: exampleCrossing,
 		summary: "which body part passes lowest over the bar, by how much, and a picture of the pass",
 		run:     runCrossing}
@@ -42,7 +42,11 @@ func crossingSpecs() []optionSpec {
 
 func runCrossing(c *call) (Reply, error) {
 	const ex = exampleCrossing
-	o, err := parseOptions(c.args, crossingSpecs(), ex)
+	args, _, err := foldFrames(c.args, ex+" kick 130 frames at 240fps")
+	if err != nil {
+		return Reply{}, err
+	}
+	o, err := parseOptions(args, crossingSpecs(), ex)
 	if err != nil {
 		return Reply{}, err
 	}
