@@ -399,6 +399,14 @@ func calcFieldName(field string) string {
 		return "the posture (posture)"
 	case mechanics.FieldH2:
 		return "the rise in flight (H2)"
+	case mechanics.FieldAngle:
+		return "the angle to the bar (angle)"
+	case mechanics.FieldFrames:
+		return "the frame count (N frames at F fps)"
+	case mechanics.FieldFPS:
+		return "the frame rate (N frames at F fps)"
+	case mechanics.FieldKick:
+		return "the leg-lift time (kick)"
 	case mechanics.FieldH3:
 		return "the peak above the bar (H3)"
 	default:

@@ -364,6 +364,9 @@ func rangeNoteOf(f mechanics.RangeFlag) rangeNote {
 	switch f.Range.Unit {
 	case "°":
 		v = fmt.Sprintf("%.0f°", f.Value)
+		if r := math.Round(f.Value); r == f.Range.Lo || r == f.Range.Hi {
+			v = fmt.Sprintf("%.1f°", f.Value) // 34.6°, not "35° below 35–55°"
+		}
 	case "":
 		v = fmt.Sprintf("%.2f", f.Value)
 	}
