@@ -142,7 +142,7 @@ func runCOM(c *call) (Reply, error) {
 		r.Table = &Table{Header: []string{"", arcHead, segHead}, Rows: [][]string{
 			{"c.m. below the apex", calcSmall(ar.arc.DropM, imp), calcSmall(seg.DropM, imp)},
 			{"underside below apex (d)", units.SmallAbs(ar.depthM, imp), units.SmallAbs(seg.UndersideDepthM, imp)},
-			{"c.m. below the bar contact", units.Small(ar.arc.DropM-ar.depthM, imp), units.Small(seg.BelowUndersideM, imp)},
+			{"c.m. below bar contact", units.Small(ar.arc.DropM-ar.depthM, imp), units.Small(seg.BelowUndersideM, imp)},
 		}}
 		r.Lines = append(r.Lines,
 			"Arc: "+comLine(ar.arc.DropM-ar.depthM, imp),

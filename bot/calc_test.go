@@ -139,6 +139,25 @@ func TestCalcIssueLines(t *testing.T) {
 			t.Errorf("%q lists no assumptions", tt.line)
 		}
 		golden(t, tt.name+"-more", plain(full))
+		checkLabels(t, tt.line, full)
+	}
+}
+
+// checkLabels fails when a row label of a full read-out is longer than a
+// phone row, about 24 characters (issue 17).
+func checkLabels(t *testing.T, line string, r bot.Reply) {
+	t.Helper()
+	for _, f := range r.Fields {
+		if n := len([]rune(f.Label)); n > 24 {
+			t.Errorf("%q: row label %q has %d characters (want at most 24)", line, f.Label, n)
+		}
+	}
+	if r.Table != nil {
+		for _, row := range r.Table.Rows {
+			if n := len([]rune(row[0])); n > 24 {
+				t.Errorf("%q: table row %q has %d characters (want at most 24)", line, row[0], n)
+			}
+		}
 	}
 }
 
@@ -173,6 +192,7 @@ func TestCalcMoreReplies(t *testing.T) {
 		full := te.more(tt.line)
 		contains(t, full, tt.wants...)
 		golden(t, tt.name+"-more", plain(full))
+		checkLabels(t, tt.line, full)
 	}
 }
 
