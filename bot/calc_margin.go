@@ -167,6 +167,8 @@ func marginInputName(in string) string {
 		return "body depth"
 	case "bar":
 		return "bar"
+	case "spot":
+		return "where the peak falls"
 	}
 	return in
 }
@@ -176,6 +178,8 @@ func marginSigmaIn(c mechanics.Contribution, imp bool) string {
 	switch c.Input {
 	case "vz", "vx":
 		return "±" + calcSpeed(c.SigmaIn)
+	case "spot":
+		return "(take-off distance and speed across the bar)"
 	case "arch":
 		return "±" + fmtDeg(c.SigmaIn) + "°"
 	}

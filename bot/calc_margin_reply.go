@@ -195,8 +195,8 @@ func marginInputKey(in string) string {
 	switch in {
 	case "vx":
 		return "speed and angle"
-	case "D":
-		return "from"
+	case "D", "spot":
+		return "from D"
 	case "length":
 		return "height"
 	}

@@ -1,8 +1,10 @@
 package bot
 
 import (
+	"cmp"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/lathmark-team/lathmark/internal/mechanics"
@@ -35,6 +37,37 @@ type marginState struct {
 // marginDraws is the Monte Carlo run's size: 3 × 2000 margins, about 10 ms,
 // good to about 2 % on the ± (1/√(2n)).
 const marginDraws = 2000
+
+// peakSpotNodes is the grid of the peak-spot moments: 100 × 100 closed
+// forms, about 0.1 ms.
+const peakSpotNodes = 100
+
+// peakSpot carries into the assumed ± what judging the c.m. at its peak
+// hides when the take-off distance is not typed: the c.m. crosses the bar
+// plane somewhere near its peak, lower by the parabola's fall over the
+// gap, whose spread over the published take-off distances and speeds
+// across the bar comes from mechanics.PeakSpotSpread.
+func (st *marginState) peakSpot() {
+	if st.m.hasD || st.res.VzMS <= 0 {
+		return
+	}
+	mean, sd, err := mechanics.PeakSpotSpread(st.res.VzMS, st.env.gMS2, st.sex, peakSpotNodes)
+	if err != nil || sd == 0 {
+		return
+	}
+	c := mechanics.Contribution{Input: "spot", SigmaIn: sd, Sensitivity: 1, SigmaM: sd, Assumed: true}
+	cs := append(st.res.Contributions, c)
+	slices.SortStableFunc(cs, func(a, b mechanics.Contribution) int { return cmp.Compare(b.SigmaM, a.SigmaM) })
+	st.res.Contributions = cs
+	st.res.SigmaAssumedM = math.Hypot(st.res.SigmaAssumedM, sd)
+	st.res.SigmaM = math.Hypot(st.res.SigmaTypedM, st.res.SigmaAssumedM)
+	st.assumed = append(st.assumed, "take-off spot")
+	dR, _ := mechanics.RangeFor(mechanics.QTakeoffDist, st.sex, mechanics.Elite)
+	vR, _ := mechanics.RangeFor(mechanics.QAcrossSpeed, st.sex, mechanics.Elite)
+	imp := st.env.imp
+	st.notes = append(st.notes, fmt.Sprintf("for take-offs %s out at %s across the bar (the published ranges) the c.m. crosses the bar plane on average %s below its peak, ± %s (taken over both ranges); that ± is in the assumed part (add from D to judge it at the bar plane)",
+		formatSpan(dR), formatSpan(vR), units.SmallAbs(mean, imp), units.SmallAbs(sd, imp)))
+}
 
 // curved is the cheap test before the Monte Carlo run: the second-order
 // term of the c.m. height at the bar plane, −g·Δt²/2 with Δt the spread
@@ -108,6 +141,7 @@ func runMargin(c *call) (Reply, error) {
 	if st.res, err = mechanics.Margin(st.in); err != nil {
 		return Reply{}, calcErr(err, ex)
 	}
+	st.peakSpot()
 	st.nonLinear()
 	st.flagOutputs()
 	full, change, err := st.fullReply()
