@@ -65,7 +65,7 @@ func (st *marginState) peakSpot() {
 	dR, _ := mechanics.RangeFor(mechanics.QTakeoffDist, st.sex, mechanics.Elite)
 	vR, _ := mechanics.RangeFor(mechanics.QAcrossSpeed, st.sex, mechanics.Elite)
 	imp := st.env.imp
-	st.notes = append(st.notes, fmt.Sprintf("for take-offs %s out at %s across the bar (the published ranges) the c.m. crosses the bar plane on average %s below its peak, ± %s (taken over both ranges); that ± is in the assumed part (add from D to judge it at the bar plane)",
+	st.notes = append(st.notes, fmt.Sprintf("for take-offs %s out with the speed across the bar that puts the peak near the bar plane, g·D/vz with the spread of the %s row, the c.m. crosses the bar plane on average %s below its peak, ± %s; that ± is in the assumed part (add from D to judge it at the bar plane)",
 		formatSpan(dR), formatSpan(vR), units.SmallAbs(mean, imp), units.SmallAbs(sd, imp)))
 }
 

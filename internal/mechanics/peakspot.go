@@ -9,15 +9,17 @@ import (
 // take-off distance is not known: the c.m. crosses the bar plane, not
 // necessarily at its peak, so its height there is lower by
 //
-//	L = g·(D − v·vz/g)² / (2v²)        [m]
+//	L = g·x² / (2v²),  x = D − v·vz/g        [m]
 //
-// (the parabola's fall over the horizontal distance between the peak and
-// the bar plane; v the speed across the bar, D the take-off distance). For
-// D and v spread evenly over the published elite rows of the sex
-// (RangeFor QTakeoffDist and QAcrossSpeed), it returns the mean and the
-// standard deviation of L, the moments E[L] and √(E[L²] − E[L]²) taken by
-// the midpoint rule on a k × k grid (k 10..1000; 100 gives them to about
-// 0.1 %): the spread an honest ± carries for "judged at its peak".
+// (the parabola's fall over the horizontal gap x between the peak and the
+// bar plane; v the speed across the bar, D the take-off distance). It uses
+// the same assumption as ResolveAcross with nothing typed: the c.m. peaks
+// close to the bar plane (Dapena 1980), v = g·D/vz + ε, with D spread
+// evenly over the published take-off distances of the sex (RangeFor
+// QTakeoffDist, elite) and ε evenly over ±√3·σ of the speed-across row
+// (QAcrossSpeed, elite), so x = −ε·vz/g. It returns the mean and the
+// standard deviation of L, E[L] and √(E[L²] − E[L]²), by the midpoint rule
+// on a k × k grid (k 10..1000).
 func PeakSpotSpread(vzMS, gMS2 float64, sex Sex, k int) (meanM, sdM float64, err error) {
 	g, err := gravityOrStandard(gMS2)
 	if err != nil {
@@ -34,13 +36,15 @@ func PeakSpotSpread(vzMS, gMS2 float64, sex Sex, k int) (meanM, sdM float64, err
 	}
 	dR, _ := RangeFor(QTakeoffDist, sex, Elite)
 	vR, _ := RangeFor(QAcrossSpeed, sex, Elite)
+	half := math.Sqrt(3) * vR.Sigma() // half-width of ε
 	var m1, m2 float64
 	w := 1 / float64(k*k)
 	for i := range k {
 		d := dR.Lo + (float64(i)+0.5)/float64(k)*(dR.Hi-dR.Lo)
 		for j := range k {
-			v := vR.Lo + (float64(j)+0.5)/float64(k)*(vR.Hi-vR.Lo)
-			x := d - v*vzMS/g
+			eps := -half + (float64(j)+0.5)/float64(k)*2*half
+			v := g*d/vzMS + eps
+			x := -eps * vzMS / g
 			l := g * x * x / (2 * v * v)
 			m1 += w * l
 			m2 += w * l * l
