@@ -270,16 +270,20 @@ func (fs *flightState) shortReply(full Reply) calcShort {
 	imp, g := fs.env.imp, fs.env.gMS2
 	rise, tPeak := fs.vz*fs.vz/(2*g), fs.vz/g
 	s := calcShort{assumed: fs.assumed}
-	s.verdict = fmt.Sprintf("Rise %s from vz %s", units.Length(rise, imp), calcSpeed(fs.vz))
+	s.verdict = fmt.Sprintf("Rise %s from vz %s", flightLength(rise, imp), calcSpeed(fs.vz))
 	if fs.hasH0 {
-		s.verdict = fmt.Sprintf("Peak %s: rise %s from vz %s", units.Length(fs.h0+rise, imp), units.Length(rise, imp), calcSpeed(fs.vz))
+		s.verdict = fmt.Sprintf("Peak %s: rise %s from vz %s", flightLength(fs.h0+rise, imp), flightLength(rise, imp), calcSpeed(fs.vz))
 	}
 	nums := fmt.Sprintf("Up %.2f s, back to take-off height %.2f s", tPeak, 2*tPeak)
 	if deg, _ := fs.angle(); deg > 0 {
-		nums += fmt.Sprintf("; flight %s°", fmtDeg(deg))
+		at := ""
+		if fs.across != nil && fs.across.Source == mechanics.AcrossTyped {
+			at = "≤ " // only the speed across the bar is known
+		}
+		nums += fmt.Sprintf("; flight %s%s°", at, fmtDeg(deg))
 	}
 	if fs.across != nil {
-		nums += "; peak " + units.Length(fs.across.MS*tPeak, imp) + " out"
+		nums += "; peak " + flightLength(fs.across.MS*tPeak, imp) + " out"
 	}
 	s.body = append(s.body, shortLine{nums, 3})
 	pm := fmt.Sprintf("± %s on the rise from vz ± %.2f m/s", shortCM(tPeak*fs.sigVz, imp), fs.sigVz)
