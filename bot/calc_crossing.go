@@ -150,6 +150,10 @@ func runCrossing(c *call) (Reply, error) {
 		return Reply{}, fmt.Errorf("crossing picture: %w", err)
 	}
 	name := fmt.Sprintf("crossing-%.0fcm.png", barM*100)
+	if fa := crossingFlightAngle(o, vz, vx, in.Body.Sex); fa != "" {
+		lines = append(lines, fa)
+		short.body = append(short.body, shortLine{strings.SplitN(fa, " = ", 2)[0], 4})
+	}
 	lines = append(lines, "Picture: "+name)
 	assumed = append(assumed, b.notes...)
 	assumed = append(assumed, tnotes...)
@@ -239,4 +243,26 @@ func crossingPicture(in mechanics.CrossingInput, r mechanics.CrossingResult, imp
 	}
 	return passplot.PNG(passplot.Pass{Title: "Pass over " + units.Bar(in.BarM, imp), BarM: in.BarM, DM: in.DM,
 		Path: pts, Poses: poses, Lowest: r.LowestPoint, Imperial: imp}, 800, 600)
+}
+
+// crossingFlightAngle words the flight angle atan(vz/vx) with vx the whole
+// horizontal speed: typed, else the middle of the published range (an
+// upper bound with only the speed across the bar typed).
+func crossingFlightAngle(o options, vz, acrossMS float64, sex mechanics.Sex) string {
+	spd, _ := mechanics.RangeFor(mechanics.QHorizSpeed, sex, mechanics.Elite)
+	vx, how := spd.Mid(), fmt.Sprintf("vx %s assumed, the middle of the published %s", calcSpeed(spd.Mid()), formatSpan(spd))
+	if v, ok := o.num("speed"); ok {
+		vx, how = v, fmt.Sprintf("vx %s typed", calcSpeed(v))
+	} else if _, ok := o.num("across"); ok && acrossMS > vx {
+		vx, how = acrossMS, "at most: only the speed across the bar is known"
+	}
+	d, err := mechanics.FlightAngleDeg(vz, vx)
+	if err != nil {
+		return ""
+	}
+	line := fmt.Sprintf("Flight angle %s° = atan(vz/vx), %s.", fmtDeg(d), how)
+	if f, bad := mechanics.CheckRange(mechanics.QFlightAngle, d, sex); bad {
+		line += " " + capitalise(f.Line) + "."
+	}
+	return line
 }
