@@ -51,6 +51,13 @@ func (st *marginState) verdict() string {
 func (st *marginState) advice() (marginAdvice, error) {
 	res, imp := st.res, st.env.imp
 	if st.tooClose() {
+		// A move is suggested only when it rests on typed numbers and
+		// clears by more than the ±; otherwise too close means no change.
+		if res.AtBarPlane && res.VzMS > 0 && math.Abs(res.PeakPastBarM) >= peakSpotM {
+			if a, ok := st.spotAdvice(); ok && a.change && res.PeakM-res.RequiredM > res.SigmaM {
+				return a, nil
+			}
+		}
 		a := marginAdvice{full: "The margin is within its ± of zero: too close to call from these numbers; no change is suggested."}
 		if res.AtBarPlane && math.Abs(res.PeakPastBarM) >= peakSpotM {
 			where := "past"
