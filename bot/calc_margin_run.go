@@ -38,9 +38,11 @@ type marginState struct {
 // good to about 2 % on the ± (1/√(2n)).
 const marginDraws = 2000
 
-// peakSpotNodes is the grid of the peak-spot moments: 100 × 100 closed
-// forms, about 0.1 ms.
-const peakSpotNodes = 100
+// peakSpotNodes is the grid of the peak-spot moments: 40 × 40 closed
+// forms, about 20 µs; the midpoint rule on this smooth integrand is good
+// to a fraction of a per cent here (checked against a 300 × 300 grid in the
+// tests).
+const peakSpotNodes = 40
 
 // peakSpot carries into the assumed ± what judging the c.m. at its peak
 // hides when the take-off distance is not typed: the c.m. crosses the bar
