@@ -104,7 +104,7 @@ func (st *marginState) spotAdvice() (marginAdvice, bool) {
 	if st.across != nil && st.across.Assumed() {
 		return marginAdvice{
 			full:  fmt.Sprintf("On the assumed speed across the bar the peak falls %s %s the bar; that rests on an assumption, so no move is suggested: give across VX, or speed V angle A.", calcShift(past, imp), where),
-			short: "No move suggested: the speed across the bar is assumed.",
+			short: "No move suggested: the speed across the bar is assumed (give across VX).",
 		}, true
 	}
 	atPeak := res.PeakM - res.RequiredM
