@@ -793,3 +793,36 @@ func TestCalcNumbersRounded(t *testing.T) {
 		}
 	}
 }
+
+// TestPropertySuggestedMoveClears: over a grid of typed take-offs, every
+// suggested take-off spot, tried as typed, clears the bar; and no move is
+// suggested while the speed across the bar is assumed.
+func TestPropertySuggestedMoveClears(t *testing.T) {
+	te := calcEngine(t)
+	spotRE := regexp.MustCompile(`\(([0-9.]+) m from the bar\)`)
+	moves := 0
+	for _, d := range []string{"0.6", "0.8", "1.0", "1.2", "1.5"} {
+		for _, across := range []string{"2.0", "2.4", "2.9"} {
+			for _, vz := range []string{"4.0", "4.4"} {
+				line := "margin 2.00 v " + vz + " h0 1.25 height 1.86 from " + d + " across " + across
+				full := plain(te.more(line))
+				m := spotRE.FindStringSubmatch(full)
+				if m == nil {
+					continue
+				}
+				moves++
+				again := te.run("margin 2.00 v " + vz + " h0 1.25 height 1.86 from " + m[1] + " across " + across)
+				if !strings.HasPrefix(again.Title, "Clears by") && !strings.HasPrefix(again.Title, "Too close to call: +") {
+					t.Errorf("%q suggests a take-off %s m out, which gives %q", line, m[1], again.Title)
+				}
+			}
+		}
+		if txt := plain(te.more("margin 2.00 v 4.4 h0 1.25 height 1.86 from " + d)); spotRE.MatchString(txt) {
+			t.Errorf("from %s with the speed across the bar assumed, a move is suggested:\n%s", d, txt)
+		}
+	}
+	if moves == 0 {
+		t.Error("no move suggested anywhere on the grid: the property checked nothing")
+	}
+	t.Logf("%d suggested moves tried", moves)
+}
