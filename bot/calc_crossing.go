@@ -153,6 +153,9 @@ func runCrossing(c *call) (Reply, error) {
 	if fa := crossingFlightAngle(o, vz, vx, in.Body.Sex); fa != "" {
 		lines = append(lines, fa)
 		short.body = append(short.body, shortLine{strings.SplitN(fa, " = ", 2)[0], 4})
+		if !o.has("speed") {
+			shortAssumed = append(shortAssumed, "vx")
+		}
 	}
 	lines = append(lines, "Picture: "+name)
 	assumed = append(assumed, b.notes...)
