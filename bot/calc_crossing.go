@@ -108,7 +108,7 @@ func runCrossing(c *call) (Reply, error) {
 			vx, acrossTyped = sp*math.Sin(a*math.Pi/180), true
 		} else {
 			vx = env.gMS2 * d / vz
-			shortAssumed = append(shortAssumed, "speed across the bar")
+			shortAssumed = append(shortAssumed, "speed across the bar "+calcSpeed(vx))
 			assumed = append(assumed, fmt.Sprintf("speed across the bar %s = g·D/vz (peak over the bar)", calcSpeed(vx)))
 		}
 	}

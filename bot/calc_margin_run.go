@@ -203,7 +203,7 @@ func (st *marginState) takeoff(att record.Attempt, hasAtt bool) error {
 		st.across = &ac
 		st.notes = append(st.notes, marginAcrossNote(ac))
 		if ac.Assumed() {
-			st.assumed = append(st.assumed, "speed across the bar")
+			st.assumed = append(st.assumed, "speed across the bar "+calcSpeed(ac.MS))
 		}
 	}
 	if m.hasD {
