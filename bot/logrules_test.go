@@ -160,19 +160,20 @@ func TestPeakVzSameInLogAndMargin(t *testing.T) {
 	te.must("athlete add Mia height 1.78 sex f pb 1.80")
 	marginOf := func(r bot.Reply) string {
 		for _, f := range r.Fields {
+			// The central value: the ± is each command's own budget.
 			if f.Label == "Margin" {
-				return strings.SplitN(f.Value, ":", 2)[0]
+				return strings.SplitN(f.Value, " ±", 2)[0]
 			}
 			if i := strings.Index(f.Value, "model margin "); i >= 0 {
-				return strings.SplitN(f.Value[i+len("model margin "):], ",", 2)[0]
+				return strings.SplitN(f.Value[i+len("model margin "):], " ±", 2)[0]
 			}
 		}
 		t.Fatalf("no margin in:\n%s", plain(r))
 		return ""
 	}
 	l := marginOf(te.must("log Mia 1.72 xo peak 2.01 vz 3.9"))
-	m1 := marginOf(te.must("margin 1.72 for Mia v 3.9 peak 2.01 arch 90"))
-	m2 := marginOf(te.must("margin 1.72 for Mia arch 90"))
+	m1 := marginOf(te.must("margin 1.72 for Mia v 3.9 peak 2.01 arch 90 more"))
+	m2 := marginOf(te.must("margin 1.72 for Mia arch 90 more"))
 	if !strings.HasPrefix(l, "+") || l != m1 || l != m2 {
 		t.Errorf("log %q, margin typed %q, margin from the log %q", l, m1, m2)
 	}
