@@ -67,7 +67,8 @@ type Options struct {
 	// DefaultInitialMmapSize. (On Windows bbolt grows the file to it.)
 	InitialMmapSize int
 	// Logger receives the warning when an existing data file was readable
-	// by others and Open tightened it to 0600; nil discards.
+	// by others and Open tightened it to 0600, and the first damage a
+	// transaction meets (see ErrDamaged); nil discards.
 	Logger *slog.Logger
 }
 
@@ -130,6 +131,7 @@ type DB struct {
 	bolt     *bolt.DB
 	path     string
 	readOnly bool
+	guard    txGuard
 }
 
 // Open opens the data file at path, creating it (mode 0600, parent
@@ -172,6 +174,12 @@ func openWith(path string, opts Options, ms map[uint64]migration, target uint64)
 			return nil, err
 		}
 	}
+	// The quick check: two page reads, before bbolt maps anything.
+	if err := quickCheckFile(path); errors.Is(err, errNotBolt) {
+		return nil, fmt.Errorf("store: open %s: %w", path, err)
+	} else if err != nil {
+		return nil, fmt.Errorf("store: open %s: %w", path, damagedFile(err))
+	}
 	bdb, err := bolt.Open(path, fileMode, &bolt.Options{Timeout: timeout, ReadOnly: opts.ReadOnly, InitialMmapSize: mmapSize})
 	if errors.Is(err, bolterrors.ErrTimeout) {
 		return nil, &LockedError{Path: path, Waited: timeout, err: err}
@@ -186,6 +194,7 @@ func openWith(path string, opts Options, ms map[uint64]migration, target uint64)
 		bdb.MaxBatchDelay = opts.MaxBatchDelay
 	}
 	db := &DB{bolt: bdb, path: path, readOnly: opts.ReadOnly}
+	db.guard.log, db.guard.path = opts.Logger, path
 	if err := db.checkSize(); err != nil {
 		_ = bdb.Close()
 		return nil, err
@@ -238,11 +247,14 @@ func (db *DB) Close() error {
 }
 
 // View runs fn in one read-only transaction. It returns ctx's error without
-// starting if ctx is already done, and otherwise fn's error unchanged.
-func (db *DB) View(ctx context.Context, fn func(*Tx) error) error {
+// starting if ctx is already done, and otherwise fn's error unchanged. A
+// fault of the memory map while fn reads (a damaged file) ends fn and is
+// returned as an error matching ErrDamaged (see txGuard).
+func (db *DB) View(ctx context.Context, fn func(*Tx) error) (err error) {
 	if err := ctx.Err(); err != nil {
 		return fmt.Errorf("store: view not started: %w", err)
 	}
+	defer db.guard.catch(&err, "view", debug.SetPanicOnFault(true))
 	tx, err := db.bolt.Begin(false)
 	if err != nil {
 		return fmt.Errorf("store: begin view: %w", err)
@@ -253,31 +265,31 @@ func (db *DB) View(ctx context.Context, fn func(*Tx) error) error {
 
 // Update runs fn in one read-write transaction and commits iff fn returns
 // nil and ctx is still live; otherwise nothing fn wrote is kept. It does not
-// start if ctx is already done. fn's own error is returned unchanged.
-func (db *DB) Update(ctx context.Context, fn func(*Tx) error) error {
+// start if ctx is already done. fn's own error is returned unchanged; a
+// commit that fails for a full disk matches ErrDiskFull, and a fault of the
+// memory map (a damaged file) matches ErrDamaged.
+func (db *DB) Update(ctx context.Context, fn func(*Tx) error) (err error) {
 	if err := ctx.Err(); err != nil {
 		return fmt.Errorf("store: update not started: %w", err)
 	}
+	defer db.guard.catch(&err, "update", debug.SetPanicOnFault(true))
 	tx, err := db.bolt.Begin(true)
 	if err != nil {
 		return fmt.Errorf("store: begin update: %w", err)
 	}
-	committed := false
-	defer func() {
-		if !committed {
-			_ = tx.Rollback()
-		}
-	}()
+	// Rolls back unless committed; after Commit (which rolls back itself on
+	// failure) it is a no-op. It also runs while a fault unwinds.
+	defer func() { _ = tx.Rollback() }()
 	if err := fn(&Tx{tx: tx}); err != nil {
 		return err
 	}
 	if err := ctx.Err(); err != nil {
 		return fmt.Errorf("store: update rolled back: %w", err)
 	}
-	committed = true
 	if err := tx.Commit(); err != nil {
-		return fmt.Errorf("store: commit: %w", err)
+		return db.guard.commitFailed(err)
 	}
+	db.guard.committed()
 	return nil
 }
 
@@ -302,5 +314,16 @@ func (db *DB) Batch(ctx context.Context, fn func(*Tx) error) error {
 		return db.Update(ctx, fn)
 	}
 	defer db.writers.Add(-1)
-	return db.bolt.Batch(func(tx *bolt.Tx) error { return fn(&Tx{tx: tx}) })
+	err := db.bolt.Batch(func(tx *bolt.Tx) (err error) {
+		// bbolt runs this on its own batch goroutine: guard it there.
+		defer db.guard.catch(&err, "batch", debug.SetPanicOnFault(true))
+		return fn(&Tx{tx: tx})
+	})
+	switch {
+	case err == nil:
+		db.guard.committed()
+	case !errors.Is(err, ErrDamaged) && isDiskFull(err):
+		return db.guard.commitFailed(err)
+	}
+	return err
 }
