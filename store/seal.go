@@ -66,21 +66,28 @@ func seal(key, payload []byte) []byte {
 // sub-slice of v, valid as long as v is).
 func unseal(key, v []byte) ([]byte, error) {
 	if len(v) < sealLen {
-		return nil, fmt.Errorf("record %q: %d bytes, too short to hold its checksum: %w", shortKey(key), len(v), ErrDamaged)
+		return nil, fmt.Errorf("record %s: %d bytes, too short to hold its checksum: %w", shortKey(key), len(v), ErrDamaged)
 	}
 	p := v[:len(v)-sealLen]
 	if got, want := binary.BigEndian.Uint32(v[len(p):]), sealSum(key, p); got != want {
-		return nil, fmt.Errorf("record %q: checksum %08x, content gives %08x: %w", shortKey(key), got, want, ErrDamaged)
+		return nil, fmt.Errorf("record %s: checksum %08x, content gives %08x: %w", shortKey(key), got, want, ErrDamaged)
 	}
 	return p, nil
 }
 
-// shortKey is a key for an error message: at most 40 bytes of it.
+// shortKey is a key for an error message: text as it is, binary keys in
+// hex, at most 40 bytes of either.
 func shortKey(key []byte) string {
+	cut := ""
 	if len(key) > 40 {
-		return string(key[:40]) + "…"
+		key, cut = key[:40], "…"
 	}
-	return string(key)
+	for _, c := range key {
+		if c < ' ' || c > '~' {
+			return fmt.Sprintf("%x%s", key, cut)
+		}
+	}
+	return string(key) + cut
 }
 
 // putValue stores payload sealed under key.
