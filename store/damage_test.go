@@ -120,9 +120,10 @@ type probes struct {
 }
 
 // dumpStore reads everything through the store's accessors, each in its own
-// transaction as the bot's commands do, and returns what each read gave:
-// the record's JSON, or "ERR " and the error. A read that fails does not
-// stop the others.
+// transaction as the bot's commands do, and returns one entry per record
+// found (its JSON) or, for a read that failed, "ERR " and the error. A
+// record not found has no entry, so a missing record is told apart from a
+// record read as another value. A read that fails does not stop the others.
 func dumpStore(db *store.DB, pr probes) (map[string]string, []error) {
 	ctx := context.Background()
 	out := map[string]string{}
@@ -149,80 +150,81 @@ func dumpStore(db *store.DB, pr probes) (map[string]string, []error) {
 		if err != nil {
 			return err
 		}
-		names := []string{}
 		for _, a := range as {
 			ids = append(ids, a.ID)
-			names = append(names, a.Name)
+			put("listed "+a.Name, a.ID)
 		}
-		put("athletes", names)
 		return nil
 	})
 	for _, id := range ids {
 		read(fmt.Sprintf("athlete %d", id), func(tx *store.Tx) error {
 			a, ok, err := tx.AthleteByID(id)
-			if err != nil {
+			if err != nil || !ok {
 				return err
 			}
 			put(fmt.Sprintf("athlete %d", id), a)
+			b, ok, err := tx.AthleteByName(a.Name)
 			if ok {
-				b, ok, err := tx.AthleteByName(a.Name)
-				if err != nil {
-					return err
-				}
-				put("by name "+a.Name, map[string]any{"ok": ok, "id": b.ID})
+				put("by name "+a.Name, b.ID)
 			}
-			return nil
+			return err
 		})
 		read(fmt.Sprintf("attempts %d", id), func(tx *store.Tx) error {
-			var all []record.Attempt
-			err := tx.Attempts(id, time.Unix(0, 0), time.Date(2200, 1, 1, 0, 0, 0, 0, time.UTC), func(a record.Attempt) error {
-				all = append(all, a)
+			return tx.Attempts(id, time.Unix(0, 0), time.Date(2200, 1, 1, 0, 0, 0, 0, time.UTC), func(a record.Attempt) error {
+				put(fmt.Sprintf("attempt %d %s %d", a.AthleteID, a.Time.Format(time.RFC3339Nano), a.Seq), a)
 				return nil
 			})
-			put(fmt.Sprintf("attempts %d", id), all)
-			return err
 		})
 	}
 	read("users", func(tx *store.Tx) error {
 		us, err := tx.Users()
 		for _, u := range us {
 			users = append(users, u.ID)
+			put("listed user "+u.ID, u)
 		}
-		put("users", us)
 		return err
 	})
 	for _, u := range append(users, pr.hintUsers...) {
 		read("user "+u, func(tx *store.Tx) error {
-			got, ok, err := tx.User(u)
-			if err != nil {
+			if got, ok, err := tx.User(u); err != nil {
 				return err
+			} else if ok {
+				put("user "+u, got)
 			}
-			l, lok, err := tx.LastLine(u)
-			if err != nil {
+			if l, ok, err := tx.LastLine(u); err != nil {
 				return err
+			} else if ok {
+				put("last line "+u, l)
 			}
-			at, hok, err := tx.HintShown(u, "knock")
-			put("user "+u, map[string]any{"user": got, "ok": ok, "line": l, "line ok": lok, "hint": at, "hint ok": hok})
-			return err
+			if at, ok, err := tx.HintShown(u, "knock"); err != nil {
+				return err
+			} else if ok {
+				put("hint "+u, at)
+			}
+			return nil
 		})
 	}
 	read("audit", func(tx *store.Tx) error {
-		var es []record.AuditEntry
-		err := tx.AuditEntries(time.Unix(0, 0), func(e record.AuditEntry) error { es = append(es, e); return nil })
-		put("audit", es)
-		return err
+		return tx.AuditEntries(time.Unix(0, 0), func(e record.AuditEntry) error {
+			put("audit "+e.Action+" "+e.Subject, e)
+			return nil
+		})
 	})
 	for _, id := range pr.seen {
 		read("seen "+id, func(tx *store.Tx) error {
 			ok, err := tx.Seen(id)
-			put("seen "+id, ok)
+			if ok {
+				put("seen "+id, ok)
+			}
 			return err
 		})
 	}
 	for _, w := range pr.weeks {
 		read("digest "+w, func(tx *store.Tx) error {
 			at, ok, err := tx.DigestPosted(w)
-			put("digest "+w, map[string]any{"at": at, "ok": ok})
+			if ok {
+				put("digest "+w, at)
+			}
 			return err
 		})
 	}
@@ -230,7 +232,9 @@ func dumpStore(db *store.DB, pr probes) (map[string]string, []error) {
 		out["inbox"] = "ERR " + err.Error()
 		errs = append(errs, err)
 	} else {
-		put("inbox", es)
+		for _, e := range es {
+			put("inbox "+e.ID, e)
+		}
 	}
 	return out, errs
 }

@@ -90,6 +90,35 @@ func shortKey(key []byte) string {
 	return string(key) + cut
 }
 
+// soundAt checks the seal of the record a scan stopped at (k nil: the
+// bucket's end; v nil: a nested bucket). A scan that ends at a key outside
+// its range calls it, so that a record whose key bits were damaged (moving
+// it past the range) is reported instead of silently left out.
+func soundAt(k, v []byte) error {
+	if k == nil || v == nil {
+		return nil
+	}
+	_, err := unseal(k, v)
+	return err
+}
+
+// missSound is called when key holds nothing: the records either side of
+// where it would be must be sound, or the one wanted may be among them
+// under a damaged key.
+func missSound(b *bolt.Bucket, key []byte) error {
+	c := b.Cursor()
+	k, v := c.Seek(key)
+	if err := soundAt(k, v); err != nil {
+		return err
+	}
+	if k == nil {
+		k, v = c.Last()
+	} else {
+		k, v = c.Prev()
+	}
+	return soundAt(k, v)
+}
+
 // putValue stores payload sealed under key.
 func putValue(b *bolt.Bucket, key, payload []byte) error {
 	return b.Put(key, seal(key, payload))
@@ -100,7 +129,7 @@ func putValue(b *bolt.Bucket, key, payload []byte) error {
 func getValue(b *bolt.Bucket, key []byte) (payload []byte, ok bool, err error) {
 	v := b.Get(key)
 	if v == nil {
-		return nil, false, nil
+		return nil, false, missSound(b, key)
 	}
 	p, err := unseal(key, v)
 	if err != nil {
@@ -123,7 +152,7 @@ func putJSON(b *bolt.Bucket, key []byte, v any) error {
 func getJSON(b *bolt.Bucket, key []byte, out any) (ok bool, err error) {
 	v := b.Get(key)
 	if v == nil {
-		return false, nil
+		return false, missSound(b, key)
 	}
 	return true, decodeJSON(key, v, out)
 }
@@ -173,7 +202,7 @@ func getTime(b *bolt.Bucket, key string) (time.Time, bool, error) {
 	}
 	v := b.Get([]byte(key))
 	if v == nil {
-		return time.Time{}, false, nil
+		return time.Time{}, false, missSound(b, []byte(key))
 	}
 	at, err := decodeTime([]byte(key), v)
 	return at, err == nil, err

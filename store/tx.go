@@ -117,6 +117,9 @@ func (t *Tx) AthleteByName(name string) (record.Athlete, bool, error) {
 	}
 	v := bs[0].Get([]byte(key))
 	if v == nil {
+		if err := missSound(bs[0], []byte(key)); err != nil {
+			return record.Athlete{}, false, fmt.Errorf("store: athlete %q: name index: %w", name, err)
+		}
 		return record.Athlete{}, false, nil
 	}
 	id, err := decodeID([]byte(key), v)
@@ -413,6 +416,11 @@ func (t *Tx) Attempts(athleteID uint64, from, to time.Time, fn func(record.Attem
 	for k, v := c.Seek(start); k != nil; k, v = c.Next() {
 		t.scanSteps++
 		if bytes.Compare(k, end) >= 0 {
+			// The first key past the window may be one of ours whose key
+			// was damaged: it must be sound for the window to be whole.
+			if err := soundAt(k, v); err != nil {
+				return fmt.Errorf("store: attempts of athlete %d: %w", athleteID, err)
+			}
 			break
 		}
 		if bytes.Compare(k, start) < 0 {
@@ -458,7 +466,8 @@ func findLine(b *bolt.Bucket, l record.Line, n uint64) (found []byte, used []uin
 	prefix := lineKey(l.LoggedBy, n, 0)
 	prefix = prefix[:len(prefix)-seqLen]
 	c := b.Cursor()
-	for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
+	k, v := c.Seek(prefix)
+	for ; k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
 		var have record.Line
 		if err := decodeJSON(k, v, &have); err != nil {
 			return nil, nil, fmt.Errorf("decode line %q: %w", k, err)
@@ -467,6 +476,9 @@ func findLine(b *bolt.Bucket, l record.Line, n uint64) (found []byte, used []uin
 			found = bytes.Clone(k)
 		}
 		used = append(used, binary.BigEndian.Uint32(k[len(prefix):]))
+	}
+	if err := soundAt(k, v); err != nil {
+		return nil, nil, err
 	}
 	return found, used, nil
 }
@@ -544,6 +556,9 @@ func (t *Tx) LastLine(loggedBy string) (record.Line, bool, error) {
 		k, v = c.Prev()
 	}
 	if k == nil || !bytes.HasPrefix(k, prefix) {
+		if err := soundAt(k, v); err != nil {
+			return record.Line{}, false, fmt.Errorf("store: last line of %q: %w", loggedBy, err)
+		}
 		return record.Line{}, false, nil
 	}
 	var l record.Line
