@@ -144,7 +144,8 @@ func putJSON(b *bolt.Bucket, key []byte, v any) error {
 	if err != nil {
 		return fmt.Errorf("encode: %w", err)
 	}
-	return putValue(b, key, data)
+	// data is ours: seal it in place rather than copying it.
+	return b.Put(key, binary.BigEndian.AppendUint32(data, sealSum(key, data)))
 }
 
 // getJSON decodes the sealed JSON under key into out; ok is false if
