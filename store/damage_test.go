@@ -15,6 +15,7 @@ import (
 	"fmt"
 	"log/slog"
 	"os"
+	"path/filepath"
 	"sort"
 	"strings"
 	"sync"
@@ -425,6 +426,33 @@ func TestVersion1FileMigrates(t *testing.T) {
 	}); err != nil {
 		t.Fatal(err)
 	}
+}
+
+// A version 1 backup restores: Restore migrates the copy before checking it.
+func TestRestoreVersion1Backup(t *testing.T) {
+	dir := t.TempDir()
+	backup := filepath.Join(dir, "old-backup.db")
+	rawFile(t, backup, func(tx *bolt.Tx) error {
+		if err := makeV1(tx); err != nil {
+			return err
+		}
+		return tx.Bucket([]byte("team")).Put([]byte("settings"), []byte(`{"name":"Old squad","digest_day":1}`))
+	})
+	live := filepath.Join(dir, "live.db")
+	if err := store.Restore(backup, live); err != nil {
+		t.Fatalf("restore a version 1 backup: %v", err)
+	}
+	if err := store.Check(live); err != nil {
+		t.Fatalf("check after restore: %v", err)
+	}
+	db := openUnchecked(t, live)
+	view(t, db, func(tx *store.Tx) error {
+		team, err := tx.Team()
+		if err != nil || team.Name != "Old squad" {
+			t.Errorf("team after restore: %+v, %v", team, err)
+		}
+		return nil
+	})
 }
 
 // logCounter counts log records at error level.

@@ -9,6 +9,14 @@
 // transaction through DB.View, DB.Update or DB.Batch and read and write
 // through the methods of Tx.
 //
+// Every value is stored sealed with a CRC-32C of its key and value and
+// checked on every read (seal.go): write and read stored values only
+// through putJSON/getJSON/decodeJSON, putValue/getValue and
+// putTime/getTime (TestNoUnsealedAccess enforces it), and a new bucket is
+// covered as it stands. Damage read, or a fault of the memory map while
+// reading, is an error matching ErrDamaged; a commit refused for space,
+// ErrDiskFull.
+//
 // The data file holds personal data (names, body measures, birth years of
 // athletes who may be minors): it is created readable by its owner only
 // (mode 0600, directory 0700), and backups get the same mode.
