@@ -2,19 +2,48 @@ package store_test
 
 import (
 	"bytes"
+	"context"
 	"errors"
 	"fmt"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"testing"
 	"time"
 
 	bolt "go.etcd.io/bbolt"
 
+	"github.com/lathmark-team/lathmark/bot"
+	"github.com/lathmark-team/lathmark/internal/botstore"
+	"github.com/lathmark-team/lathmark/internal/console"
 	"github.com/lathmark-team/lathmark/store"
 )
+
+// botCommands are read by the bot's engine on every damaged copy, as a head
+// coach in the terminal would type them.
+var botCommands = []string{"athletes", "athlete Ath01", "history Ath03 52w", "best Ath05", "audit 3650d", "team"}
+
+// botReplies runs botCommands through an engine on db and renders each reply.
+func botReplies(t testing.TB, db *store.DB) []string {
+	t.Helper()
+	now := base.Add(30 * 24 * time.Hour)
+	e, err := bot.New(bot.Config{Store: botstore.New(db), Clock: bot.ClockFunc(func() time.Time { return now }), HeadCoaches: []string{"U_HEAD"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	out := make([]string, len(botCommands))
+	for i, c := range botCommands {
+		var b bytes.Buffer
+		_ = console.Render(&b, e.Handle(context.Background(), bot.Request{UserID: "U_HEAD", UserName: "coach", Text: c, Time: now, Local: true}))
+		out[i] = b.String()
+	}
+	return out
+}
+
+// damageReply is how the bot answers a read of damaged data.
+const damageReply = "The data file is damaged; run `lathmark check`, restore from a backup."
 
 // corruptCopies is how many damaged copies TestCorruptCopies makes: 40 in
 // the ordinary run (CI), LATHMARK_CORRUPT_COPIES for the long form (.ci/long
@@ -43,6 +72,7 @@ type corruptStats struct {
 	wrongUnseenByCheck        int // ... of those, copies check passed
 	missing                   int // copies where every read succeeded but records were absent
 	missingUnseenByCheck      int
+	botDamage, botOther       int // bot replies saying the file is damaged; other changed replies
 }
 
 // TestCorruptCopies makes many copies of a real data file (built here with
@@ -65,6 +95,12 @@ func TestCorruptCopies(t *testing.T) {
 	want, errs := dumpStore(db, pr)
 	if len(errs) > 0 {
 		t.Fatalf("undamaged file: %v", errs)
+	}
+	wantBot := botReplies(t, db)
+	for i, r := range wantBot {
+		if strings.Contains(r, "Not done") {
+			t.Fatalf("undamaged file: %q: %s", botCommands[i], r)
+		}
 	}
 	var used int64
 	if err := store.Raw(db).View(func(tx *bolt.Tx) error { used = tx.Size(); return nil }); err != nil {
@@ -104,15 +140,15 @@ func TestCorruptCopies(t *testing.T) {
 			t.Fatal(err)
 		}
 		st.copies++
-		corruptOne(t, path, what, want, pr, &st)
+		corruptOne(t, path, what, want, wantBot, pr, &st)
 		_ = os.Remove(path)
 	}
 	t.Logf("corruption summary: %d copies (%d with %d bits flipped, %d cut short) of a %d-byte file in %s: "+
 		"check found damage in %d, %d refused at open, reads reported damage in %d, %d read exactly as written; "+
-		"a read gave another value than written in %d (check passed %d of those); records absent while every read succeeded in %d (check passed %d); no run died",
+		"a read gave another value than written in %d (check passed %d of those); records absent while every read succeeded in %d (check passed %d); the bot said the file is damaged in %d of %d replies, other changed replies %d; no run died",
 		st.copies, st.copies-st.truncated, st.bits, st.truncated, used, time.Since(start).Round(time.Millisecond),
 		st.checkFound, st.refusedAtOpen, st.readDamage, st.unchanged,
-		st.wrongValue, st.wrongUnseenByCheck, st.missing, st.missingUnseenByCheck)
+		st.wrongValue, st.wrongUnseenByCheck, st.missing, st.missingUnseenByCheck, st.botDamage, len(botCommands)*(st.copies-st.refusedAtOpen), st.botOther)
 	if st.wrongValue > 0 {
 		t.Errorf("%d copies returned a damaged record as another value", st.wrongValue)
 	}
@@ -122,7 +158,7 @@ func TestCorruptCopies(t *testing.T) {
 }
 
 // corruptOne checks one damaged copy (see TestCorruptCopies).
-func corruptOne(t *testing.T, path, what string, want map[string]string, pr probes, st *corruptStats) {
+func corruptOne(t *testing.T, path, what string, want map[string]string, wantBot []string, pr probes, st *corruptStats) {
 	t.Helper()
 	checkErr := store.Check(path)
 	found := checkErr != nil
@@ -141,6 +177,7 @@ func corruptOne(t *testing.T, path, what string, want map[string]string, pr prob
 		return
 	}
 	got, errs := dumpStore(db, pr)
+	gotBot := botReplies(t, db)
 	if err := db.Close(); err != nil {
 		t.Errorf("%s: close: %v", what, err)
 	}
@@ -172,6 +209,20 @@ func corruptOne(t *testing.T, path, what string, want map[string]string, pr prob
 				t.Logf("%s: every read succeeded, %s absent (check: %q)", what, k, checkErr)
 			}
 			missing = true
+		}
+	}
+	// The bot answers each command as before, or says the file is damaged;
+	// never "something went wrong". (Where records went missing without a
+	// read error its replies may differ; check reports those files.)
+	for i, r := range gotBot {
+		switch {
+		case r == wantBot[i]:
+		case strings.Contains(r, damageReply):
+			st.botDamage++
+		case missing && found:
+		default:
+			st.botOther++
+			t.Errorf("%s: the bot answered %q with\n%s\nwas\n%s", what, botCommands[i], r, wantBot[i])
 		}
 	}
 	switch {
