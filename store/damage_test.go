@@ -126,17 +126,37 @@ type probes struct {
 // record not found has no entry, so a missing record is told apart from a
 // record read as another value. A read that fails does not stop the others.
 func dumpStore(db *store.DB, pr probes) (map[string]string, []error) {
+	d, errs := dumpStoreReads(db, pr)
+	return d.out, errs
+}
+
+// storeDump is what dumpStoreReads read: the entries, the read each entry
+// came from, and the reads that ran to the end without an error.
+type storeDump struct {
+	out     map[string]string
+	readOf  map[string]string
+	okReads map[string]bool
+}
+
+// dumpStoreReads is dumpStore, also saying which read found each entry.
+func dumpStoreReads(db *store.DB, pr probes) (storeDump, []error) {
 	ctx := context.Background()
-	out := map[string]string{}
+	d := storeDump{out: map[string]string{}, readOf: map[string]string{}, okReads: map[string]bool{}}
+	out := d.out
 	var errs []error
+	current := ""
 	put := func(name string, v any) {
 		data, _ := json.Marshal(v)
 		out[name] = string(data)
+		d.readOf[name] = current
 	}
 	read := func(name string, fn func(tx *store.Tx) error) {
+		current = name
 		if err := db.View(ctx, fn); err != nil {
 			out[name] = "ERR " + err.Error()
 			errs = append(errs, err)
+		} else {
+			d.okReads[name] = true
 		}
 	}
 	read("team", func(tx *store.Tx) error {
@@ -229,15 +249,17 @@ func dumpStore(db *store.DB, pr probes) (map[string]string, []error) {
 			return err
 		})
 	}
+	current = "inbox"
 	if es, err := db.InboxEntries(ctx); err != nil {
 		out["inbox"] = "ERR " + err.Error()
 		errs = append(errs, err)
 	} else {
+		d.okReads["inbox"] = true
 		for _, e := range es {
 			put("inbox "+e.ID, e)
 		}
 	}
-	return out, errs
+	return d, errs
 }
 
 // probesOf lists the keys of the seen, digests and hints buckets.
