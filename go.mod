@@ -12,6 +12,8 @@ require (
 	gonum.org/v1/plot v0.17.0
 )
 
+require github.com/mtibben/confusables v0.0.0-20210201002637-9d1b0723b659
+
 require (
 	codeberg.org/go-fonts/liberation v0.5.0 // indirect
 	codeberg.org/go-latex/latex v0.2.0 // indirect
@@ -21,5 +23,5 @@ require (
 	github.com/golang/freetype v0.0.0-20170609003504-e2365dfdc4a0 // indirect
 	golang.org/x/image v0.30.0 // indirect
 	golang.org/x/sys v0.50.0 // indirect
-	golang.org/x/text v0.44.0 // indirect
+	golang.org/x/text v0.44.0
 )

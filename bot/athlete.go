@@ -39,13 +39,14 @@ var profileSpecs = []optionSpec{
 	{Key: "group", Aliases: []string{"squad"}, Kind: kindWord},
 	{Key: "depth", Aliases: []string{"thickness"}, Kind: kindLength},
 	{Key: "private", Kind: kindWord},
+	{Key: "consent", Aliases: []string{"guardian"}, Kind: kindWord},
 	{Key: "notes", Aliases: []string{"note"}, Kind: kindRest},
 }
 
 func athleteCommands() []command {
 	return []command{
 		{name: "athlete add", aliases: []string{"add athlete", "new athlete"}, topic: "athletes", access: coachOnly,
-			usage:   "athlete add NAME height H [mass KG] [sex m|f] [leg left|right] [pb BAR] [born YEAR] [group G] [private yes] [notes TEXT]",
+			usage:   "athlete add NAME height H [mass KG] [sex m|f] [leg left|right] [pb BAR] [born YEAR] [group G] [private yes] [consent yes] [notes TEXT]",
 			example: exampleAdd, summary: "add a profile (one-word name)", run: runAthleteAdd},
 		{name: "athletes", aliases: []string{"squad", "roster"}, topic: "athletes", access: selfOrCoach,
 			usage: "athletes [GROUP]", example: "athletes", summary: "list the squad", run: runAthleteList},
@@ -102,7 +103,7 @@ func runAthleteAdd(c *call) (Reply, error) {
 	if len(c.args) == 0 {
 		return Reply{}, usageErr(exampleAdd, "give a name and at least a height")
 	}
-	name := c.args[0].Raw
+	name := nfc(c.args[0].Raw)
 	if err := checkName(name, exampleAdd); err != nil {
 		return Reply{}, err
 	}
@@ -111,7 +112,10 @@ func runAthleteAdd(c *call) (Reply, error) {
 		return Reply{}, err
 	}
 	if len(o.rest) > 0 {
-		return Reply{}, unknownWords(o.rest, exampleAdd, "profile fields are height, mass, sex, leg, pb, born, group, depth, private, notes")
+		return Reply{}, unknownWords(o.rest, exampleAdd, "profile fields are height, mass, sex, leg, pb, born, group, depth, private, consent, notes")
+	}
+	if err := c.mayRecordConsent(o); err != nil {
+		return Reply{}, err
 	}
 	a := record.Athlete{Name: name, Created: c.now}
 	if err := applyProfile(&a, o, c.now.Year(), exampleAdd); err != nil {
@@ -122,10 +126,8 @@ func runAthleteAdd(c *call) (Reply, error) {
 	}
 	var team record.Team
 	err = c.update(func(tx Tx) error {
-		if old, ok, err := tx.AthleteByName(name); err != nil {
+		if err := checkNewName(tx, name, 0, exampleAdd); err != nil {
 			return err
-		} else if ok {
-			return conflictErr("athlete "+old.Name, "there is already an athlete called %s; `athlete %s` shows the profile, or pick another name", old.Name, old.Name)
 		}
 		if team, err = tx.Team(); err != nil {
 			return err
@@ -138,8 +140,9 @@ func runAthleteAdd(c *call) (Reply, error) {
 	if err != nil {
 		return Reply{}, err
 	}
-	r := profileReply(a, team, nil)
+	r := profileReply(a, team, nil, c.now.Year())
 	r.Title = "Added " + a.Name
+	r.Ephemeral = true // profile details never go to a channel
 	if isMinor(a, c.now.Year()) {
 		r.Caution = minorCaution
 	}
@@ -147,7 +150,7 @@ func runAthleteAdd(c *call) (Reply, error) {
 }
 
 // minorCaution is shown when a minor's profile is created.
-const minorCaution = "This athlete is under 18. Record their data only with a parent's or guardian's consent, as local law requires; `athlete set NAME private yes` keeps their numbers out of the team digest."
+const minorCaution = "This athlete is under 18. Record their data only with a parent's or guardian's consent, as local law requires. Until a head coach records it (`athlete set NAME consent yes`) they appear in no channel reply; `athlete set NAME private yes` keeps them out for good."
 
 // isMinor reports whether the athlete turns under 18 this year.
 func isMinor(a record.Athlete, year int) bool { return a.BirthYear != 0 && year-a.BirthYear < 18 }
@@ -203,6 +206,7 @@ func applyProfile(a *record.Athlete, o options, year int, example string) error 
 		a.BirthYear = y
 	}
 	if w, ok := o.word("group"); ok {
+		w = nfc(w)
 		if len(w) > 32 {
 			return usageErr(example, "group %q is longer than 32 letters", w)
 		}
@@ -220,6 +224,13 @@ func applyProfile(a *record.Athlete, o options, year int, example string) error 
 			return usageErr(example, "private %q: use yes or no", w)
 		}
 		a.Private = b
+	}
+	if w, ok := o.word("consent"); ok {
+		b, err := yesNo(w)
+		if err != nil {
+			return usageErr(example, "consent %q: use yes or no (a parent's or guardian's consent is on file)", w)
+		}
+		a.Consent = b
 	}
 	if w, ok := o.word("notes"); ok {
 		if len(w) > 500 {
@@ -255,7 +266,7 @@ func unknownWords(rest []token, example, hint string) error {
 
 // profileReply shows a profile in the team's units. linked lists the chat
 // users tied to the athlete.
-func profileReply(a record.Athlete, team record.Team, linked []record.User) Reply {
+func profileReply(a record.Athlete, team record.Team, linked []record.User, year int) Reply {
 	imp := imperial(team)
 	r := Reply{Title: a.Name}
 	add := func(label, value string) { r.Fields = append(r.Fields, Field{label, value}) }
@@ -287,7 +298,14 @@ func profileReply(a record.Athlete, team record.Team, linked []record.User) Repl
 		add("Body depth", units.SmallAbs(a.BodyDepthM, imp))
 	}
 	if a.Private {
-		add("Private", "yes: numbers stay out of the team digest")
+		add("Private", "yes: shown in no channel reply")
+	}
+	if isMinor(a, year) {
+		if a.Consent {
+			add("Guardian consent", "recorded")
+		} else {
+			add("Guardian consent", "not recorded: shown in no channel reply")
+		}
 	}
 	for _, u := range linked {
 		add("Chat user", userLabel(u))
@@ -352,57 +370,9 @@ func runAthleteShow(c *call) (Reply, error) {
 	if err != nil {
 		return Reply{}, err
 	}
-	r := profileReply(a, team, linked)
-	r.Ephemeral = a.Private
+	r := profileReply(a, team, linked, c.now.Year())
+	r.Ephemeral = true // birth year, notes and mass never go to a channel
 	return r, nil
-}
-
-func runAthleteList(c *call) (Reply, error) {
-	group := ""
-	if len(c.args) > 0 {
-		group = c.args[0].Raw
-	}
-	var (
-		all  []record.Athlete
-		team record.Team
-	)
-	err := c.view(func(tx Tx) error {
-		var err error
-		if all, err = tx.Athletes(); err != nil {
-			return err
-		}
-		team, err = tx.Team()
-		return err
-	})
-	if err != nil {
-		return Reply{}, err
-	}
-	imp := imperial(team)
-	t := &Table{Header: []string{"name", "height", "pb", "group"}}
-	for _, a := range all {
-		if group != "" && !strings.EqualFold(a.Group, group) {
-			continue
-		}
-		h, pb := "", ""
-		if a.StatureM > 0 {
-			h = units.Bar(a.StatureM, imp)
-		}
-		if a.PersonalBestM > 0 && !a.Private {
-			pb = units.Bar(a.PersonalBestM, imp)
-		}
-		t.Rows = append(t.Rows, []string{a.Name, h, pb, a.Group})
-	}
-	if len(t.Rows) == 0 {
-		if group != "" {
-			return Reply{Title: "No athletes in group " + group, Example: "athletes", Ephemeral: true}, nil
-		}
-		return Reply{Title: "No athletes yet", Lines: []string{"Add the first one:"}, Example: exampleAdd}, nil
-	}
-	title := fmt.Sprintf("Squad: %d athletes", len(t.Rows))
-	if group != "" {
-		title += " in " + group
-	}
-	return Reply{Title: title, Table: t}, nil
 }
 
 func runAthleteSet(c *call) (Reply, error) {
@@ -415,7 +385,10 @@ func runAthleteSet(c *call) (Reply, error) {
 		return Reply{}, err
 	}
 	if len(o.rest) > 0 {
-		return Reply{}, unknownWords(o.rest, ex, "fields are height, mass, sex, leg, pb, born, group, depth, private, notes")
+		return Reply{}, unknownWords(o.rest, ex, "fields are height, mass, sex, leg, pb, born, group, depth, private, consent, notes")
+	}
+	if err := c.mayRecordConsent(o); err != nil {
+		return Reply{}, err
 	}
 	var (
 		after record.Athlete
@@ -441,8 +414,9 @@ func runAthleteSet(c *call) (Reply, error) {
 	if err != nil {
 		return Reply{}, err
 	}
-	r := profileReply(after, team, nil)
+	r := profileReply(after, team, nil, c.now.Year())
 	r.Title = "Updated " + after.Name
+	r.Ephemeral = true // profile details never go to a channel
 	if isMinor(after, c.now.Year()) && setsBorn(c.args) {
 		r.Caution = minorCaution // the same reminder as athlete add
 	}
@@ -454,7 +428,7 @@ func runAthleteRename(c *call) (Reply, error) {
 	if len(c.args) != 2 {
 		return Reply{}, usageErr(ex, "give the old name and the new one")
 	}
-	newName := c.args[1].Raw
+	newName := nfc(c.args[1].Raw)
 	if err := checkName(newName, ex); err != nil {
 		return Reply{}, err
 	}
@@ -465,10 +439,8 @@ func runAthleteRename(c *call) (Reply, error) {
 			return err
 		}
 		oldName = a.Name
-		if other, ok, err := tx.AthleteByName(newName); err != nil {
+		if err := checkNewName(tx, newName, a.ID, ex); err != nil {
 			return err
-		} else if ok && other.ID != a.ID {
-			return conflictErr(ex, "there is already an athlete called %s", other.Name)
 		}
 		before := a
 		a.Name = newName

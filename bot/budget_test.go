@@ -28,7 +28,7 @@ type replyBudget struct {
 // characters, of which at most 8 lines. Lists and tables (history, help,
 // CSV summaries, import problems): two screens.
 var (
-	calcBudget    = replyBudget{kind: "calculation", lines: 5, chars: 400, awaiting: "the short calculation replies of issue 17 (physics branch)"}
+	calcBudget    = replyBudget{kind: "calculation", lines: 5, chars: 400}
 	refusalBudget = replyBudget{kind: "refusal", lines: 4, chars: 350}
 	confirmBudget = replyBudget{kind: "confirmation", lines: 8, chars: 700}
 	listBudget    = replyBudget{kind: "list or table", lines: 16, chars: 1600}
@@ -61,6 +61,9 @@ var budgetByGolden = []struct {
 	{"chart", "chart", confirmBudget},
 	{"hint", "log (hint)", confirmBudget},
 	{"block", "a pasted block of lines", listBudget},
+	{"meet", "the meet sheet commands", confirmBudget},
+	{"meet-standings", "standings", listBudget},
+	{"meet-err", "a meet sheet command refused", refusalBudget},
 }
 
 // TestReplyBudget renders (reads) every golden reply and fails when a

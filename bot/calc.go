@@ -62,22 +62,22 @@ const calcCaution = "Estimates from a simplified model; the coach decides. Try a
 // calcCommands are the quick calculations: margin, flight, jump test, com.
 func calcCommands() []command {
 	return []command{
-		{name: "margin", aliases: []string{"clearance"}, topic: "calc", access: anyone,
-			usage:   "margin BAR [for ATHLETE] [v VZ] [h0 H] [peak P] [arch DEG] [height STATURE] [depth D] [from D [speed VX]] [model arc|segments] [sex m|f] [table deleva|dempster]",
+		{name: "margin", aliases: []string{"clearance"}, topic: "calc", access: anyone, details: true,
+			usage:   "margin BAR [for ATHLETE] [v VZ] [h0 H] [peak P] [arch DEG] [height STATURE] [depth D] [from D] [across VX | speed V angle A] [model arc|segments] [sex m|f] [table deleva|dempster] [more]",
 			example: exampleMargin,
 			summary: "does the bar go? c.m. peak, height needed, margin ± and Hay's H1/H2/H3; profile fills in the rest",
 			run:     runMargin},
-		{name: "flight", topic: "calc", access: anyone,
-			usage:   "flight v VZ [h0 H] [vx VX] [mat H] | flight time T",
+		{name: "flight", topic: "calc", access: anyone, details: true,
+			usage:   "flight v VZ | up T [h0 H] [across VX | speed V angle A] [mat H] [sex m|f] | flight time T (T in s, or N frames at F fps)",
 			example: exampleFlight,
-			summary: "c.m. flight: rise, peak, time to peak, flight times; or jump-test height from a flight time",
+			summary: "c.m. flight: rise, peak, flight angle, times; vz from the time up (vz = g·T, frames from video); or jump-test height from a flight time",
 			run:     runFlight},
-		{name: "jump test", aliases: []string{"jumptest"}, topic: "calc", access: anyone,
-			usage:   "jump test T",
+		{name: "jump test", aliases: []string{"jumptest"}, topic: "calc", access: anyone, details: true,
+			usage:   "jump test T (s, or N frames at F fps)",
 			example: "jump test 0.60",
 			summary: "jump-test height from flight time (h = g t²/8)",
 			run:     runJumpTestCmd},
-		{name: "com", aliases: []string{"centre of mass", "center of mass"}, topic: "calc", access: anyone,
+		{name: "com", aliases: []string{"centre of mass", "center of mass"}, topic: "calc", access: anyone, details: true,
 			usage:   "com [for ATHLETE] [arch DEG] [height STATURE] [depth D] [posture " + strings.Join(mechanics.PostureNames(), "|") + "] [model arc|segments|both] [sex m|f] [table deleva|dempster]",
 			example: exampleCOM,
 			summary: "where the c.m. lies below the apex of the arched body and below the bar contact",
@@ -399,6 +399,14 @@ func calcFieldName(field string) string {
 		return "the posture (posture)"
 	case mechanics.FieldH2:
 		return "the rise in flight (H2)"
+	case mechanics.FieldAngle:
+		return "the angle to the bar (angle)"
+	case mechanics.FieldFrames:
+		return "the frame count (N frames at F fps)"
+	case mechanics.FieldFPS:
+		return "the frame rate (N frames at F fps)"
+	case mechanics.FieldKick:
+		return "the leg-lift time (kick)"
 	case mechanics.FieldH3:
 		return "the peak above the bar (H3)"
 	default:

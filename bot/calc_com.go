@@ -79,7 +79,7 @@ func runCOM(c *call) (Reply, error) {
 		a := arch
 		if !hasArch {
 			a = defaultArchDeg
-			notes = append(notes, fmt.Sprintf("arch assumed %s° (add arch DEG to set it)", calcNum(a)))
+			notes = append(notes, fmt.Sprintf("arch assumed %s° (add arch DEG to set it)", fmtDeg(a)))
 		}
 		if ar.arc, err = mechanics.NewArc(b.statureM, mechanics.Radians(a)); err != nil {
 			return Reply{}, calcErr(err, ex)
@@ -89,7 +89,7 @@ func runCOM(c *call) (Reply, error) {
 		}
 		notes = append(notes, b.notes...)
 		b.notes = nil
-		notes = append(notes, fmt.Sprintf("arc model: uniform body of length = stature %s bent through %s°", units.Length(b.statureM, imp), calcNum(a)))
+		notes = append(notes, fmt.Sprintf("arc model: uniform body of length = stature %s bent through %s°", units.Length(b.statureM, imp), fmtDeg(a)))
 	}
 	if model != "arc" {
 		table, name, tnotes, err := pickSegmentTable(o.words["table"], b.sex, calcAthleteName(env), ex)
@@ -100,7 +100,7 @@ func runCOM(c *call) (Reply, error) {
 		notes = append(notes, tnotes...)
 		if hasArch {
 			posture.TrunkArchDeg = arch
-			notes = append(notes, fmt.Sprintf("segment model: arch %s° used as the trunk arch", calcNum(arch)))
+			notes = append(notes, fmt.Sprintf("segment model: arch %s° used as the trunk arch", fmtDeg(arch)))
 		}
 		if seg, err = mechanics.BodyCOM(b.segmentBody(), posture, table); err != nil {
 			return Reply{}, calcErr(err, ex)
@@ -116,42 +116,91 @@ func runCOM(c *call) (Reply, error) {
 		if ar.arc.Straight {
 			add("Model", fmt.Sprintf("arc, %s held straight (arch 0°)", units.Length(b.statureM, imp)))
 		} else {
-			add("Model", fmt.Sprintf("arc, %s bent through %s° (radius %s, ends %s apart)", units.Length(b.statureM, imp), calcNum(mechanics.Degrees(ar.arc.ThetaRad)), units.Length(ar.arc.RadiusM, imp), units.Length(ar.arc.ChordM, imp)))
+			add("Model", fmt.Sprintf("arc, %s bent through %s° (radius %s, ends %s apart)", units.Length(b.statureM, imp), fmtDeg(mechanics.Degrees(ar.arc.ThetaRad)), units.Length(ar.arc.RadiusM, imp), units.Length(ar.arc.ChordM, imp)))
 		}
 		add("C.m. below the apex", calcSmall(s, imp))
-		add("Underside below the apex (d)", units.SmallAbs(d, imp))
+		add("Underside below apex (d)", units.SmallAbs(d, imp))
 		add("C.m. vs the bar contact", comBarContact(s-d, imp))
 		r.Lines = append(r.Lines, capitalise(comLine(s-d, imp)))
 	case "segments":
 		add("Model", fmt.Sprintf("segments, %s posture, %s, %s", posture.Name, tname, units.Length(b.statureM, imp)))
 		if posture.Name == mechanics.Standing().Name {
 			// Upright, the apex is the top of the head and no bar is under it.
-			add("C.m. below the top of the head", units.Length(seg.DropM, imp))
+			add("C.m. below the head top", units.Length(seg.DropM, imp))
 			add("C.m. above the floor", fmt.Sprintf("%s = %.3f × stature", units.Length(seg.COMHeightM, imp), seg.COMHeightM/b.statureM))
 			break
 		}
 		add("C.m. below the apex", calcSmall(seg.DropM, imp))
 		add("C.m. along the body", comAlongBody(seg.COM.XM, imp))
-		add("Underside below the apex (d)", units.SmallAbs(seg.UndersideDepthM, imp))
+		add("Underside below apex (d)", units.SmallAbs(seg.UndersideDepthM, imp))
 		add("C.m. vs the bar contact", comBarContact(seg.BelowUndersideM, imp))
 		add("Apex on the", seg.ApexSegment.String())
 		r.Lines = append(r.Lines, capitalise(comLine(seg.BelowUndersideM, imp)))
 	default:
-		arcHead := fmt.Sprintf("arc %s°", calcNum(mechanics.Degrees(ar.arc.ThetaRad)))
+		arcHead := fmt.Sprintf("arc %s°", fmtDeg(mechanics.Degrees(ar.arc.ThetaRad)))
 		segHead := fmt.Sprintf("segments (%s)", posture.Name)
 		r.Table = &Table{Header: []string{"", arcHead, segHead}, Rows: [][]string{
 			{"c.m. below the apex", calcSmall(ar.arc.DropM, imp), calcSmall(seg.DropM, imp)},
-			{"underside below the apex (d)", units.SmallAbs(ar.depthM, imp), units.SmallAbs(seg.UndersideDepthM, imp)},
-			{"c.m. below the bar contact", units.Small(ar.arc.DropM-ar.depthM, imp), units.Small(seg.BelowUndersideM, imp)},
+			{"underside below apex (d)", units.SmallAbs(ar.depthM, imp), units.SmallAbs(seg.UndersideDepthM, imp)},
+			{"c.m. below bar contact", units.Small(ar.arc.DropM-ar.depthM, imp), units.Small(seg.BelowUndersideM, imp)},
 		}}
 		r.Lines = append(r.Lines,
 			"Arc: "+comLine(ar.arc.DropM-ar.depthM, imp),
 			"Segments: "+comLine(seg.BelowUndersideM, imp),
-			fmt.Sprintf("The models differ by %s in the c.m. drop: the arc bends the whole body evenly; the segment model bends the trunk and turns the head and legs at the joints.", units.SmallAbs(ar.arc.DropM-seg.DropM, imp)))
+			fmt.Sprintf("The models differ by %s in the c.m. drop: the arc bends the whole body evenly through %s°; the segment model arches the trunk %s° and turns the head and legs at the joints.", units.SmallAbs(ar.arc.DropM-seg.DropM, imp), fmtDeg(mechanics.Degrees(ar.arc.ThetaRad)), fmtDeg(posture.TrunkArchDeg)))
 		add("Segment table", tname)
 	}
 	r.Assumptions = notes
-	return r, nil
+	var flags []rangeNote
+	if f, bad := mechanics.CheckRange(mechanics.QArch, arch, mechanics.SexUnknown); hasArch && bad {
+		flags = append(flags, rangeNoteOf(f))
+		r.Lines = append(r.Lines, fullFlags(flags)...)
+	}
+	short := comShort(model, ar, seg, posture, b, hasArch, imp)
+	if l := checkLine(flags); l != "" {
+		short.body = append(short.body, shortLine{l, 0})
+	}
+	return short.reply(r), nil
+}
+
+// comShort is the phone-sized `com` answer: where the c.m. passes against
+// the bar with the apex touching it, and the model's arch.
+func comShort(model string, ar comArc, seg mechanics.COMResult, p mechanics.Posture, b calcBody, hasArch, imp bool) calcShort {
+	var s calcShort
+	if !hasArch {
+		s.assumed = append(s.assumed, "arch")
+	}
+	if b.depthM == 0 {
+		s.assumed = append(s.assumed, "depth")
+	}
+	arcDeg := fmtDeg(mechanics.Degrees(ar.arc.ThetaRad))
+	switch model {
+	case "arc":
+		s.verdict = capitalise(comVerdict(ar.arc.DropM-ar.depthM, imp)) + " (arc " + arcDeg + "°)"
+		s.body = []shortLine{{fmt.Sprintf("C.m. %s below the apex; underside %s below it", calcSmall(ar.arc.DropM, imp), units.SmallAbs(ar.depthM, imp)), 2}}
+	case "segments":
+		if p.Name == mechanics.Standing().Name {
+			s.verdict = fmt.Sprintf("C.m. %s above the floor, %.2f × stature", units.Length(seg.COMHeightM, imp), seg.COMHeightM/b.statureM)
+			s.assumed = nil
+			break
+		}
+		s.verdict = capitalise(comVerdict(seg.BelowUndersideM, imp)) + fmt.Sprintf(" (%s, trunk arch %s°)", p.Name, fmtDeg(p.TrunkArchDeg))
+		s.body = []shortLine{{fmt.Sprintf("C.m. %s below the apex, %s; apex on the %s", calcSmall(seg.DropM, imp), comAlongBody(seg.COM.XM, imp), seg.ApexSegment), 2}}
+	default:
+		s.verdict = fmt.Sprintf("C.m. below the bar: arc %s, segments %s", units.Small(ar.arc.DropM-ar.depthM, imp), units.Small(seg.BelowUndersideM, imp))
+		s.body = []shortLine{{fmt.Sprintf("Arc: whole body bent %s°; segments: trunk arched %s°, head and legs at the joints", arcDeg, fmtDeg(p.TrunkArchDeg)), 2},
+			{fmt.Sprintf("They differ by %s in the c.m. drop", units.SmallAbs(ar.arc.DropM-seg.DropM, imp)), 3}}
+	}
+	return s
+}
+
+// comVerdict is the short reading: "c.m. 4.9 cm below the bar" with the
+// apex touching it, or "c.m. 2.0 cm above the bar: rise that much more".
+func comVerdict(belowM float64, imp bool) string {
+	if belowM >= 0 {
+		return fmt.Sprintf("c.m. passes %s below the bar with the apex touching it", units.SmallAbs(belowM, imp))
+	}
+	return fmt.Sprintf("c.m. passes %s above the bar with the apex touching it", units.SmallAbs(belowM, imp))
 }
 
 // comDepthSource says where the segment model's depths came from.

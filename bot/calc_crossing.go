@@ -13,8 +13,8 @@ import (
 const exampleCrossing = "crossing 2.00 v 4.4 h0 1.25 height 1.86 from 1.1"
 
 func crossingCommand() command {
-	return command{name: "crossing", aliases: []string{"pass"}, topic: "calc", access: anyone,
-		usage:   "crossing BAR [for ATHLETE] [v VZ] [h0 H] [height STATURE] [mass KG] [sex m|f] [from D] [across VX | speed V angle A] [arch DEG] [kick T] [spin DEG/S]",
+	return command{name: "crossing", aliases: []string{"pass"}, topic: "calc", access: anyone, details: true,
+		usage:   "crossing BAR [for ATHLETE] [v VZ] [h0 H] [height STATURE] [mass KG] [sex m|f] [from D] [across VX | speed V angle A] [arch DEG] [kick T (s, or N frames at F fps)] [spin DEG/S]",
 		example: exampleCrossing,
 		summary: "which body part passes lowest over the bar, by how much, and a picture of the pass",
 		run:     runCrossing}
@@ -42,7 +42,11 @@ func crossingSpecs() []optionSpec {
 
 func runCrossing(c *call) (Reply, error) {
 	const ex = exampleCrossing
-	o, err := parseOptions(c.args, crossingSpecs(), ex)
+	args, _, err := foldFrames(c.args, ex+" kick 130 frames at 240fps")
+	if err != nil {
+		return Reply{}, err
+	}
+	o, err := parseOptions(args, crossingSpecs(), ex)
 	if err != nil {
 		return Reply{}, err
 	}
@@ -87,9 +91,10 @@ func runCrossing(c *call) (Reply, error) {
 	if !ok {
 		return Reply{}, usageErr(ex, "the crossing needs the take-off distance to the bar plane: add from 1.1")
 	}
-	var assumed []string
+	var assumed, shortAssumed []string
 	h0, ok := o.num("h0")
 	if !ok {
+		shortAssumed = append(shortAssumed, "h0")
 		h0 = mechanics.TakeoffHeightFraction * b.statureM
 		assumed = append(assumed, fmt.Sprintf("h0 %s (0.70 × height)", units.Length(h0, env.imp)))
 	}
@@ -103,6 +108,7 @@ func runCrossing(c *call) (Reply, error) {
 			vx, acrossTyped = sp*math.Sin(a*math.Pi/180), true
 		} else {
 			vx = env.gMS2 * d / vz
+			shortAssumed = append(shortAssumed, "speed across the bar")
 			assumed = append(assumed, fmt.Sprintf("speed across the bar %s = g·D/vz (peak over the bar)", calcSpeed(vx)))
 		}
 	}
@@ -120,9 +126,19 @@ func runCrossing(c *call) (Reply, error) {
 		return Reply{}, calcErr(err, ex)
 	}
 	lines := crossingLines(r, env.imp)
-	lines = append(lines, crossingFlags(in, acrossTyped)...)
+	flags := crossingFlags(in, acrossTyped)
+	lines = append(lines, flags...)
+	short := calcShort{verdict: crossingVerdict(r, env.imp) + " at " + units.Bar(barM, env.imp) + env.who()}
+	if len(lines) > 1 {
+		short.body = append(short.body, shortLine{lines[1], 3})
+	}
+	if len(flags) > 0 {
+		short.body = append(short.body, shortLine{"Check: " + strings.Join(flags, "; "), 0})
+	}
 	if r.Touches {
-		lines = append(lines, crossingAdvice(in, r))
+		adv := crossingAdvice(in, r)
+		lines = append(lines, adv)
+		short.body = append(short.body, shortLine{adv + " The coach decides.", 1})
 	}
 	mr, err := mechanics.Margin(mechanics.MarginInput{BarM: barM, H0M: h0, VzMS: vz, DM: d, VxMS: vx, GMS2: env.gMS2,
 		StatureM: b.statureM, ArchDeg: defaultArchDeg})
@@ -134,14 +150,32 @@ func runCrossing(c *call) (Reply, error) {
 		return Reply{}, fmt.Errorf("crossing picture: %w", err)
 	}
 	name := fmt.Sprintf("crossing-%.0fcm.png", barM*100)
+	if fa := crossingFlightAngle(o, vz, vx, in.Body.Sex); fa != "" {
+		lines = append(lines, fa)
+		short.body = append(short.body, shortLine{strings.SplitN(fa, " = ", 2)[0], 4})
+		if !o.has("speed") {
+			shortAssumed = append(shortAssumed, "vx")
+		}
+	}
 	lines = append(lines, "Picture: "+name)
 	assumed = append(assumed, b.notes...)
 	assumed = append(assumed, tnotes...)
 	assumed = append(assumed, r.Assumptions...)
-	return Reply{Title: "Crossing " + units.Bar(barM, env.imp) + env.who(), Lines: lines,
+	full := Reply{Title: "Crossing " + units.Bar(barM, env.imp) + env.who(), Lines: lines,
 		Assumptions: []string{strings.Join(assumed, "; ")},
 		Caution:     "Something to try in practice; the coach decides.",
-		Files:       []File{{Name: name, MIME: "image/png", Title: "Pass over " + units.Bar(barM, env.imp), Data: png}}}, nil
+		Files:       []File{{Name: name, MIME: "image/png", Title: "Pass over " + units.Bar(barM, env.imp), Data: png}}}
+	short.assumed = shortAssumed
+	return short.reply(full), nil
+}
+
+// crossingVerdict is the first line: the lowest part and its clearance.
+func crossingVerdict(r mechanics.CrossingResult, imp bool) string {
+	low := r.Lowest()
+	if low.Touches {
+		return fmt.Sprintf("Knocks: the %s touch, %s below", low.Part, shortCM(low.ClearanceM, imp))
+	}
+	return fmt.Sprintf("Clears: the %s lowest, by %s", low.Part, shortCM(low.ClearanceM, imp))
 }
 
 func wordOr(o options, key string) string { w, _ := o.word(key); return w }
@@ -212,4 +246,26 @@ func crossingPicture(in mechanics.CrossingInput, r mechanics.CrossingResult, imp
 	}
 	return passplot.PNG(passplot.Pass{Title: "Pass over " + units.Bar(in.BarM, imp), BarM: in.BarM, DM: in.DM,
 		Path: pts, Poses: poses, Lowest: r.LowestPoint, Imperial: imp}, 800, 600)
+}
+
+// crossingFlightAngle words the flight angle atan(vz/vx) with vx the whole
+// horizontal speed: typed, else the middle of the published range (an
+// upper bound with only the speed across the bar typed).
+func crossingFlightAngle(o options, vz, acrossMS float64, sex mechanics.Sex) string {
+	spd, _ := mechanics.RangeFor(mechanics.QHorizSpeed, sex, mechanics.Elite)
+	vx, how := spd.Mid(), fmt.Sprintf("vx %s assumed, the middle of the published %s", calcSpeed(spd.Mid()), formatSpan(spd))
+	if v, ok := o.num("speed"); ok {
+		vx, how = v, fmt.Sprintf("vx %s typed", calcSpeed(v))
+	} else if _, ok := o.num("across"); ok && acrossMS > vx {
+		vx, how = acrossMS, "at most: only the speed across the bar is known"
+	}
+	d, err := mechanics.FlightAngleDeg(vz, vx)
+	if err != nil {
+		return ""
+	}
+	line := fmt.Sprintf("Flight angle %s° = atan(vz/vx), %s.", fmtDeg(d), how)
+	if f, bad := mechanics.CheckRange(mechanics.QFlightAngle, d, sex); bad {
+		line += " " + capitalise(f.Line) + "."
+	}
+	return line
 }

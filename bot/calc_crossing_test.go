@@ -25,7 +25,8 @@ func TestCrossingReply(t *testing.T) {
 		if _, err := png.Decode(bytes.NewReader(r.Files[0].Data)); err != nil || len(r.Files[0].Data) < 10000 {
 			t.Errorf("%s: PNG of %d bytes, decode error %v", bar, len(r.Files[0].Data), err)
 		}
-		first := r.Lines[0]
+		checkShort(t, "crossing "+bar, r)
+		first := r.Details.Lines[0]
 		parts = append(parts, first[:strings.Index(first, ",")])
 	}
 	if parts[0] != parts[1] {

@@ -242,6 +242,7 @@ func (c *call) findAthlete(tx Tx, name string) (record.Athlete, error) {
 		}
 		return a, notFoundErr("athletes", "the athlete linked to %s no longer exists", name)
 	}
+	name = nfc(name)
 	a, ok, err := tx.AthleteByName(name)
 	if err != nil || ok {
 		return a, err
@@ -250,11 +251,10 @@ func (c *call) findAthlete(tx Tx, name string) (record.Athlete, error) {
 	if err != nil {
 		return a, err
 	}
-	names := make([]string, len(all))
-	for i, x := range all {
-		names[i] = x.Name
+	if a, ok := athleteByFoldedName(all, name); ok {
+		return a, nil // a name stored before names were normalised
 	}
-	if s, ok := nearest(name, names); ok {
+	if s, ok := nearest(name, c.suggestable(all)); ok {
 		return a, notFoundErr(replaceWord(c.req.Text, name, s), "no athlete called %q. Did you mean %s?", name, s)
 	}
 	example := "athletes"

@@ -81,8 +81,8 @@ func runChart(c *call) (Reply, error) {
 		if err != nil {
 			return err
 		}
-		if ath.Private && c.inChannel() {
-			return forbiddenErr("chart "+ath.Name, "%s is private, so their chart never goes to a channel; ask me in a direct message", ath.Name)
+		if c.hidden(ath) && c.inChannel() {
+			return forbiddenErr("chart "+ath.Name, "%s is kept out of channels (%s), so their chart never goes to a channel; ask me in a direct message", ath.Name, hiddenReason(ath))
 		}
 		aw, trend, err := athleteWindow(tx, ath, week, weeks, loc)
 		if err != nil {
@@ -97,7 +97,7 @@ func runChart(c *call) (Reply, error) {
 			return fmt.Errorf("chart %s: %w", ath.Name, err)
 		}
 		r = chartReply(aw, trend, span, imp)
-		r.Ephemeral = ath.Private
+		r.Ephemeral = c.hidden(ath)
 		r.Files = []File{{Name: fmt.Sprintf("lathmark-chart-%s-%s-%dw.png", fileSafe(ath.Name), week, weeks), MIME: "image/png",
 			Title: ath.Name + ", " + span, Data: png}}
 		return nil

@@ -46,22 +46,38 @@ func allCommands() []command {
 		roleCommands(),
 		planCommands(),
 		seasonCommands(),
+		meetCommands(),
 	} {
 		cs = append(cs, group...)
 	}
 	return cs
 }
 
-// CommandInfo describes one command for documentation and tests.
+// CommandInfo describes one command for documentation and tests. Access
+// is who may run it: "anyone", "self or coach", "coach" or "head coach".
 type CommandInfo struct {
-	Name, Usage, Example, Summary, Topic string
+	Name, Usage, Example, Summary, Topic, Access string
+}
+
+// String names an access level as CommandInfo.Access does.
+func (a access) String() string {
+	switch a {
+	case selfOrCoach:
+		return "self or coach"
+	case coachOnly:
+		return "coach"
+	case headOnly:
+		return "head coach"
+	default:
+		return "anyone"
+	}
 }
 
 // Commands lists the command language in help order.
 func (e *Engine) Commands() []CommandInfo {
 	out := make([]CommandInfo, len(e.commands))
 	for i, c := range e.commands {
-		out[i] = CommandInfo{Name: c.name, Usage: c.usage, Example: c.example, Summary: c.summary, Topic: c.topic}
+		out[i] = CommandInfo{Name: c.name, Usage: c.usage, Example: c.example, Summary: c.summary, Topic: c.topic, Access: c.access.String()}
 	}
 	return out
 }

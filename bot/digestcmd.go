@@ -248,7 +248,12 @@ func buildDigest(tx Tx, week digest.Week, loc *time.Location) (digest.Digest, er
 	if err != nil {
 		return digest.Digest{}, err
 	}
+	year := week.Start(loc).Year()
 	for _, a := range athletes {
+		// An athlete kept out of channels (private, or a minor without
+		// consent recorded) is private to the digest: left out of the
+		// channel's lines, table and chart, sent by direct message.
+		a.Private = hiddenInChannel(a, year)
 		b.AddAthlete(a)
 		if err := tx.Attempts(a.ID, from, to, b.Add); err != nil {
 			return digest.Digest{}, fmt.Errorf("digest %s: attempts of %s: %w", week, a.Name, err)
@@ -329,7 +334,8 @@ func renderDigest(tx Tx, t record.Team, d digest.Digest, opts digest.ChartOption
 		r.Notes = append(r.Notes, "No jumps this week: "+strings.Join(d.Idle, ", ")+".")
 	}
 	if len(private) > 0 {
-		r.Notes = append(r.Notes, strings.Join(private, ", ")+": details sent privately.")
+		// Counted, never named: the channel does not learn who they are.
+		r.Notes = append(r.Notes, fmt.Sprintf("Details of %s sent privately.", plural(len(private), "more athlete")))
 	}
 	r.Notes = append(r.Notes, "O-X: clearances-failures. make: O/(O+X). PB, SB: personal or season best at a meet; >PB: above the personal best in practice. coach, model: median clearance margin (coach's estimate; mechanics model).")
 	r.Notes = append(r.Notes, strings.ToUpper(digest.TrendRule[:1])+digest.TrendRule[1:]+" (common practice).")

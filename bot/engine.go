@@ -84,7 +84,7 @@ func (e *Engine) Handle(ctx context.Context, req Request) (reply Reply) {
 		}
 	}()
 	if isBlock(req.Text) {
-		return e.handleBlock(ctx, req)
+		return e.keepHiddenOutOfChannel(ctx, req, e.handleBlock(ctx, req))
 	}
 	ts := tokenize(req.Text)
 	if len(ts) == 0 {
@@ -107,9 +107,9 @@ func (e *Engine) Handle(ctx context.Context, req Request) (reply Reply) {
 		return e.refusal(req, err)
 	}
 	if more && r.Details != nil {
-		return *r.Details
+		r = *r.Details
 	}
-	return r
+	return e.keepHiddenOutOfChannel(ctx, req, r)
 }
 
 // wantsMore strips a trailing "more" from the arguments of a command that

@@ -13,6 +13,7 @@ var topicOrder = []struct{ name, about string }{
 	{"digest", "the weekly clearance-trend digest"},
 	{"team", "team settings: units, time zone, venue, backups"},
 	{"plan", "suggested bars for a practice or a meet, jump budget"},
+	{"meet", "the meet sheet: competitors, attempts, standings by the tie rules"},
 	{"roles", "who may do what; privacy and the audit trail"},
 	{"safety", "what the numbers are and are not; landing, load and youth data"},
 }

@@ -190,6 +190,9 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 		return Reply{}, err
 	}
 	r := logReply(ath, ln, jumps, today, sameKind, add, bestLines, warnings, notes, imp)
+	if err := c.onMeetSheet(tx, ath, add, &r); err != nil { // meet sheet (bot/meethook.go)
+		return Reply{}, err
+	}
 	return c.quietHint(tx, r, hintMeasures, measuresHintPrefix), nil
 }
 
@@ -473,6 +476,9 @@ func (c *call) undoInTx(tx Tx) (Reply, error) {
 		}
 	}
 	if err := c.audit(tx, auditUndo, ath.Name, removed, nil); err != nil {
+		return Reply{}, err
+	}
+	if err := c.offMeetSheet(tx, l, &r); err != nil { // meet sheet (bot/meethook.go)
 		return Reply{}, err
 	}
 	return r, nil

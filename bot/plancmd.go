@@ -134,6 +134,7 @@ func runPlan(c *call) (Reply, error) {
 			return err
 		}
 		r = planReply(ath, p, imperial(team))
+		r.Ephemeral = r.Ephemeral || hiddenInChannel(ath, c.now.Year()) // under 18 without consent too
 		return nil
 	})
 	return r, err

@@ -3,19 +3,12 @@ package bot_test
 import (
 	"os"
 	"path/filepath"
+	"regexp"
+	"slices"
 	"strings"
 	"testing"
 
 	"github.com/lathmark-team/lathmark/bot"
-)
-
-// The roles of the matrix: the configured head coach, a granted coach, an
-// athlete linked to Mira, and anyone else in the workspace.
-const (
-	head    = "U_HEAD"
-	coach   = "U_COACH"
-	athlete = "U_MIRA"
-	nobody  = "U_ANY"
 )
 
 // roleTemplate prepares a store with Mira (linked to U_MIRA), Kai, a coach
@@ -48,118 +41,162 @@ func copyFile(t *testing.T, from, to string) {
 	}
 }
 
-// TestRoleMatrix runs every command against every role and checks that it
-// is allowed or refused as the roles say: athletes for themselves, coaches
-// for any athlete, head coaches for removals, settings and roles, anyone
-// else for the calculations only. A refusal names the role it needs and
-// who can grant it.
-func TestRoleMatrix(t *testing.T) {
-	tmpl := roleTemplate(t)
-	all := []string{head, coach, athlete, nobody}
-	staff := []string{head, coach}
-	members := []string{head, coach, athlete}
-	self := []string{head, coach, athlete} // the line names Mira, the athlete's own
-	headOnly := []string{head}
-	tests := []struct {
-		line    string
-		allowed []string
-	}{
-		{"help", all},
-		{"help safety", all},
-		{"whoami", all},
-		{"cancel", all},
-		{"team", all},
-		{"margin 1.80 v 4.3 h0 1.22 arch 90 height 1.78", all},
-		{"flight v 4.4 h0 1.25", all},
-		{"flight time 0.60", all},
-		{"com arch 90 height 1.80", all},
-		{"margin 1.80 for Mira v 4.3", self},
-		{"margin 1.80 for Kai v 4.3", staff},
-		{"com for Kai model segments", staff},
-		{"athletes", members},
-		{"athlete Mira", self},
-		{"chart Mira", self},
-		{"chart Kai", staff},
-		{"athlete Kai", staff},
-		{"athlete add Zed height 1.80", staff},
-		{"athlete set Kai pb 2.02", staff},
-		{"athlete rename Kai Kai-B", staff},
-		{"athlete link Kai <@U_KAI>", staff},
-		{"athlete unlink Mira", staff},
-		{"athlete remove Kai confirm", headOnly},
-		{"log Mira 1.78 xo", self},
-		{"log Kai 2.00 xo", staff},
-		{"undo", members},
-		{"history Mira", self},
-		{"history Kai 6w", staff},
-		{"best Mira", self},
-		{"best Kai", staff},
-		{"export csv Mira", self},
-		{"export csv", staff},
-		{"import csv /nonexistent/attempts.csv", headOnly},
-		{"digest", members},
-		{"digest now", members},
-		{"digest week 2026-W47", members},
-		{"digest schedule mon 07:00", headOnly},
-		{"digest channel #jumps", headOnly},
-		{"digest off", headOnly},
-		{"digest on", headOnly},
-		{"team units imperial", headOnly},
-		{"team tz Europe/Madrid", headOnly},
-		{"team location lat 40.4 alt 650", headOnly},
-		{"team name Test Club", headOnly},
-		{"team backup /tmp/lathmark-backups keep 3", headOnly},
-		{"role coach <@U_NEW>", headOnly},
-		{"roles", staff},
-		{"audit 30d", staff},
-		{"forget Kai confirm", headOnly},
-		{"plan Mira", self},
-		{"plan Kai meet steps 1.80 1.85 1.90", staff},
-		{"team jumps 25", headOnly},
-		{"season Mira", staff},
-		{"compare Mira Kai 12w", staff},
-	}
-	for _, tt := range tests {
-		for _, who := range all {
-			want := contains2(tt.allowed, who)
-			t.Run(who+"/"+tt.line, func(t *testing.T) {
-				path := filepath.Join(t.TempDir(), "case.db")
-				copyFile(t, tmpl, path)
-				te := newTestEngineAt(t, path)
-				te.idPrefix = "case-" // the template used m1, m2, ...
-				before := te.checksum()
-				r := te.as(who, tt.line)
-				forbidden := r.Kind == bot.KindForbidden
-				if want && forbidden {
-					t.Fatalf("%s should be allowed %q:\n%s", who, tt.line, plain(r))
-				}
-				if !want {
-					if !forbidden {
-						t.Fatalf("%s should be refused %q, got %v:\n%s", who, tt.line, r.Kind, plain(r))
-					}
-					p := plain(r)
-					if !(strings.Contains(p, "needs the role") || strings.Contains(p, "themself or a coach")) || !strings.Contains(p, "head coach") {
-						t.Errorf("refusal does not name the role needed and who grants it:\n%s", p)
-					}
-					if te.checksum() != before {
-						t.Errorf("a refused command changed the store")
-					}
-				}
-				if r.Kind == bot.KindInternal {
-					t.Fatalf("internal failure:\n%s", plain(r))
-				}
-			})
+// roleCase is one line of the role matrix and the roles that may run it.
+type roleCase struct {
+	line    string
+	allowed []string
+	// terminal marks a line that reads the bot's own files (import csv
+	// PATH): from chat it is refused for everyone, for the head coach with
+	// the reason that it works only at the terminal.
+	terminal bool
+}
+
+var (
+	staff    = []string{head, coach}
+	members  = []string{head, coach, athlete}
+	headOnly = []string{head}
+)
+
+// roleCases builds the matrix from the command table itself, so that a new
+// command is covered the day it is added: each command's help example, and
+// when it names an athlete, once for Mira (the athlete's own) and once for
+// Kai (another athlete's). Who may run it follows from the command's
+// declared access and the athlete named: anyone for calculations and help;
+// athletes for themselves; coaches for anyone; head coaches for removals,
+// settings and roles. Lines whose rule is not the declared access alone
+// are listed with their own roles.
+func roleCases(cmds []bot.CommandInfo) []roleCase {
+	var out []roleCase
+	for _, c := range cmds {
+		for _, v := range athleteVariants(c.Example) {
+			out = append(out, roleCase{line: v.line, allowed: rolesFor(c.Access, v.subject), terminal: strings.HasPrefix(v.line, "import csv /")})
 		}
+	}
+	return append(out, []roleCase{
+		{line: "import csv /nonexistent/attempts.csv", allowed: headOnly, terminal: true},
+		{line: "help safety", allowed: everyRole},
+		{line: "flight time 0.60", allowed: everyRole},
+		{line: "margin 1.80 for Mira v 4.3", allowed: members},
+		{line: "margin 1.80 for Kai v 4.3", allowed: staff},
+		{line: "com for Kai model segments", allowed: staff},
+		{line: "crossing 2.05 for Kai v 4.4 from 1.1", allowed: staff},
+		{line: "athlete me", allowed: members},
+		{line: "history me", allowed: members},
+		{line: "best Mira", allowed: members},
+		{line: "export csv", allowed: staff}, // every athlete
+		{line: "export csv Mira", allowed: members},
+		{line: "chart Kai", allowed: staff},
+		{line: "audit 30d", allowed: staff},
+		{line: "audit Kai 30d", allowed: staff},
+		{line: "plan Kai", allowed: staff},
+		{line: "season Kai", allowed: staff},
+		{line: "compare Kai Lena 12w", allowed: staff},
+		{line: "athlete set Mira consent yes", allowed: headOnly}, // a guardian's consent: head coaches only
+		{line: "athlete set Kai private yes", allowed: staff},
+		{line: "athlete add Zed height 1.80 born 2012 consent yes", allowed: headOnly},
+		{line: "athletes juniors", allowed: members},
+	}...)
+}
+
+// subjects of a matrix line: no athlete, the athlete's own, another's.
+const (
+	noSubject = iota
+	ownSubject
+	otherSubject
+)
+
+type variant struct {
+	line    string
+	subject int
+}
+
+var (
+	miraWord = regexp.MustCompile(`\bMira\b`)
+	kaiWord  = regexp.MustCompile(`\bKai\b`)
+)
+
+// athleteVariants is the line as it is when it names no athlete, else once
+// about Mira and once about Kai.
+func athleteVariants(line string) []variant {
+	if !miraWord.MatchString(line) && !kaiWord.MatchString(line) {
+		return []variant{{line, noSubject}}
+	}
+	return []variant{
+		{kaiWord.ReplaceAllString(line, "Mira"), ownSubject},
+		{miraWord.ReplaceAllString(line, "Kai"), otherSubject},
 	}
 }
 
-func contains2(xs []string, x string) bool {
-	for _, v := range xs {
-		if v == x {
-			return true
+// rolesFor is who may run a line by its command's declared access
+// (bot.CommandInfo.Access) and the athlete it names.
+func rolesFor(access string, subject int) []string {
+	switch {
+	case access == "head coach":
+		return headOnly
+	case access == "coach", subject == otherSubject:
+		return staff
+	case access == "self or coach", subject == ownSubject:
+		return members
+	}
+	return everyRole
+}
+
+// TestRoleMatrix runs every command of the command table against every
+// role, in a shared channel and in a direct message, and checks that it is
+// allowed or refused as the README's role table says; a refusal names the
+// role it needs and who can grant it and writes nothing; no reply posted
+// in the channel shows a hidden athlete or profile details. Under -short
+// each line runs once per role, in a channel or a direct message by turns
+// (sampled); the long form runs both.
+func TestRoleMatrix(t *testing.T) {
+	f := newPrivacyFixture(t)
+	cases := roleCases(f.e.Commands())
+	if len(cases) < len(f.e.Commands()) {
+		t.Fatalf("%d cases for %d commands", len(cases), len(f.e.Commands()))
+	}
+	for k, tt := range cases {
+		for ri, who := range everyRole {
+			for _, inChannel := range []bool{true, false} {
+				if testing.Short() && sampled(k, ri) != inChannel {
+					continue
+				}
+				place := "dm"
+				if inChannel {
+					place = "channel"
+				}
+				r := f.run(who, tt.line, inChannel)
+				want := slices.Contains(tt.allowed, who)
+				forbidden := r.Kind == bot.KindForbidden
+				if tt.terminal && want {
+					if !forbidden || !strings.Contains(plain(r), "terminal") {
+						t.Errorf("%s %s %q: from chat it should be refused as a terminal-only command:\n%s", who, place, tt.line, plain(r))
+					}
+					continue
+				}
+				switch {
+				case r.Kind == bot.KindInternal:
+					t.Errorf("%s %s %q: internal failure:\n%s", who, place, tt.line, plain(r))
+				case want && forbidden:
+					t.Errorf("%s %s should be allowed %q:\n%s", who, place, tt.line, plain(r))
+				case !want && !forbidden:
+					t.Errorf("%s %s should be refused %q, got %v:\n%s", who, place, tt.line, r.Kind, plain(r))
+				case !want:
+					p := plain(r)
+					if !(strings.Contains(p, "needs the role") || strings.Contains(p, "themself or a coach")) || !strings.Contains(p, "head coach") {
+						t.Errorf("%s %q: the refusal does not name the role needed and who grants it:\n%s", who, tt.line, p)
+					}
+					if f.st.wrote.Load() {
+						t.Errorf("%s %q: a refused command wrote to the store", who, tt.line)
+					}
+				}
+				if inChannel {
+					if leaks := channelLeaks(r); len(leaks) > 0 {
+						t.Errorf("%s %q in a channel shows %s:\n%s", who, tt.line, strings.Join(leaks, ", "), plain(r))
+					}
+				}
+			}
 		}
 	}
-	return false
 }
 
 // As an athlete, removing an athlete is refused with the role it needs; as

@@ -70,7 +70,7 @@ func runSeason(c *call) (Reply, error) {
 			return err
 		}
 		imp := imperial(team)
-		r = Reply{Title: fmt.Sprintf("Season %s of %s", label, ath.Name), Ephemeral: ath.Private}
+		r = Reply{Title: fmt.Sprintf("Season %s of %s", label, ath.Name), Ephemeral: hiddenInChannel(ath, c.now.Year())}
 		r.Fields = seasonFields(ath, s, imp)
 		for _, m := range s.SBProgression {
 			r.Lines = append(r.Lines, fmt.Sprintf("%s: %s at a meet", m.Time.In(loc).Format("2006-01-02"), barText(m.BarM, imp)))
@@ -149,7 +149,7 @@ func runCompare(c *call) (Reply, error) {
 			if err != nil {
 				return err
 			}
-			r.Ephemeral = r.Ephemeral || ath.Private
+			r.Ephemeral = r.Ephemeral || hiddenInChannel(ath, c.now.Year())
 			s, err := seasonOf(tx, ath, from, to, loc)
 			if err != nil {
 				return err

@@ -9,6 +9,8 @@ import (
 	"path/filepath"
 	"strings"
 	"time"
+
+	"github.com/lathmark-team/lathmark/internal/slackfront"
 )
 
 // stdio are the process's standard streams, passed down explicitly.
@@ -152,4 +154,32 @@ func tempDir(getenv func(string) string) string {
 		return d
 	}
 	return os.TempDir()
+}
+
+// redactingWriter replaces credentials in everything written through it:
+// the process's log lines and error messages go to one such writer, so
+// user:pass@ or a token parameter inside SLACK_API_URL (and the Slack
+// tokens themselves) never reach the terminal or a log file. slog and
+// fmt.Fprintln write a whole line per Write, so a credential is never
+// split across two writes.
+type redactingWriter struct {
+	w io.Writer
+	r slackfront.Redactor
+}
+
+func (w redactingWriter) Write(p []byte) (int, error) {
+	if _, err := w.w.Write([]byte(w.r.String(string(p)))); err != nil {
+		return 0, err
+	}
+	return len(p), nil
+}
+
+// redactOutput wraps w so that the credentials inside apiURL and the given
+// tokens are replaced by REDACTED.
+func redactOutput(w io.Writer, apiURL string, tokens ...string) io.Writer {
+	r := slackfront.NewRedactor(append(slackfront.URLSecrets(apiURL), tokens...)...)
+	if r.Empty() {
+		return w
+	}
+	return redactingWriter{w: w, r: r}
 }

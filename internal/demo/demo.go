@@ -29,6 +29,7 @@ type athlete struct {
 	born                 int
 	group                string
 	private              bool
+	consent              bool    // a guardian's consent is on file (a minor)
 	startM, gainMPerWeek float64 // practice bar at week 0 and weekly progress
 	skipWeeks            []int   // weeks with no jumps (injury, exams)
 }
@@ -41,7 +42,7 @@ var squad = []athlete{
 	{name: "Noor", sex: "f", leg: "right", statureM: 1.74, massKg: 58, pb: 1.72, born: 2004, group: "seniors", startM: 1.62, gainMPerWeek: 0.006, skipWeeks: []int{7}},
 	{name: "Tomas", sex: "m", leg: "left", statureM: 1.91, massKg: 80, pb: 2.05, born: 1997, group: "seniors", startM: 1.98, gainMPerWeek: -0.006, skipWeeks: []int{2, 3}},
 	{name: "Ines", sex: "f", leg: "left", statureM: 1.69, massKg: 54, pb: 1.64, born: 2011, group: "juniors", private: true, startM: 1.50, gainMPerWeek: 0.015},
-	{name: "Ren", sex: "m", leg: "right", statureM: 1.80, massKg: 66, pb: 1.85, born: 2010, group: "juniors", startM: 1.70, gainMPerWeek: 0.01},
+	{name: "Ren", sex: "m", leg: "right", statureM: 1.80, massKg: 66, pb: 1.85, born: 2010, group: "juniors", consent: true, startM: 1.70, gainMPerWeek: 0.01},
 }
 
 // Weeks is how many weeks of invented logs the demo carries.
@@ -65,6 +66,9 @@ func Script(now time.Time, loc *time.Location) []Line {
 		line := fmt.Sprintf("athlete add %s height %.3f mass %.0f sex %s leg %s pb %.2f born %d group %s", a.name, a.statureM, a.massKg, a.sex, a.leg, a.pb, a.born, a.group)
 		if a.private {
 			line += " private yes"
+		}
+		if a.consent {
+			line += " consent yes"
 		}
 		add(line)
 	}

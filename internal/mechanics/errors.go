@@ -3,6 +3,7 @@ package mechanics
 import (
 	"fmt"
 	"math"
+	"strconv"
 )
 
 // InputError reports an input the mechanics cannot accept: a value outside
@@ -96,10 +97,10 @@ func inRange(field string, v, lo, hi float64, unit string) error {
 		return err
 	}
 	if v < lo {
-		return inputErr(field, v, fmt.Sprintf("below %g %s", lo, unit))
+		return inputErr(field, v, fmt.Sprintf("below %s %s", boundText(lo), unit))
 	}
 	if v > hi {
-		return inputErr(field, v, fmt.Sprintf("above %g %s", hi, unit))
+		return inputErr(field, v, fmt.Sprintf("above %s %s", boundText(hi), unit))
 	}
 	return nil
 }
@@ -113,7 +114,7 @@ func positiveUpTo(field string, v, hi float64, unit string) error {
 		return inputErr(field, v, "must be positive")
 	}
 	if v > hi {
-		return inputErr(field, v, fmt.Sprintf("above %g %s", hi, unit))
+		return inputErr(field, v, fmt.Sprintf("above %s %s", boundText(hi), unit))
 	}
 	return nil
 }
@@ -182,4 +183,14 @@ func gravityOrStandard(gMS2 float64) (float64, error) {
 		return 0, err
 	}
 	return gMS2, nil
+}
+
+// boundText prints a range bound in a refusal to four significant digits
+// without an exponent: 1.349, 7, 10000, 0.004167.
+func boundText(v float64) string {
+	if v == 0 || math.IsInf(v, 0) || math.IsNaN(v) {
+		return strconv.FormatFloat(v, 'g', -1, 64)
+	}
+	p := math.Pow(10, 3-math.Floor(math.Log10(math.Abs(v))))
+	return strconv.FormatFloat(math.Round(v*p)/p, 'f', -1, 64)
 }

@@ -65,6 +65,12 @@ type MarginInput struct {
 	// DefaultUndersideDepth(StatureM) (noted in Assumptions).
 	DepthM float64
 	Sigma  Uncertainty
+	// Assumed holds the ± of the inputs that were assumed rather than
+	// typed, each the spread of its published range (PublishedRange.Sigma
+	// or a stated common-practice spread). An input with a non-zero
+	// Assumed ± uses it in place of its Sigma, and its share counts in
+	// SigmaAssumedM instead of SigmaTypedM.
+	Assumed Uncertainty
 }
 
 // Contribution is one input's share of the margin's uncertainty.
@@ -73,21 +79,25 @@ type Contribution struct {
 	SigmaIn     float64 // the input's ± in its own unit
 	Sensitivity float64 // ∂margin/∂input, metres per input unit
 	SigmaM      float64 // |Sensitivity|·SigmaIn, metres
+	Assumed     bool    // the input was assumed: SigmaIn is its published range's spread
 }
 
 // MarginResult is the clearance margin and how it was reached.
 type MarginResult struct {
-	MarginM   float64 // c.m. height used − (bar + d − s); positive clears, negative knocks
-	SigmaM    float64 // first-order ± of the margin: √Σ(∂M/∂xᵢ·σᵢ)²
-	Clears    bool    // MarginM > 0
-	COMAtBarM float64 // c.m. height used: at the bar plane (AtBarPlane) or the peak
-	RequiredM float64 // bar + d − s
-	DropM     float64 // s used
-	DepthM    float64 // d used
-	H0M       float64 // h0 used (0 if not needed and not given)
-	VzMS      float64 // vz given or derived from the peak (0 if not derivable)
-	PeakM     float64 // peak given or h0 + vz²/2g (0 if not derivable)
-	GMS2      float64 // gravity used
+	MarginM float64 // c.m. height used − (bar + d − s); positive clears, negative knocks
+	SigmaM  float64 // first-order ± of the margin: √Σ(∂M/∂xᵢ·σᵢ)² = √(typed² + assumed²)
+	// SigmaTypedM is the part of SigmaM from typed inputs (input
+	// precision), SigmaAssumedM the part from assumed ones (range spreads).
+	SigmaTypedM, SigmaAssumedM float64
+	Clears                     bool    // MarginM > 0
+	COMAtBarM                  float64 // c.m. height used: at the bar plane (AtBarPlane) or the peak
+	RequiredM                  float64 // bar + d − s
+	DropM                      float64 // s used
+	DepthM                     float64 // d used
+	H0M                        float64 // h0 used (0 if not needed and not given)
+	VzMS                       float64 // vz given or derived from the peak (0 if not derivable)
+	PeakM                      float64 // peak given or h0 + vz²/2g (0 if not derivable)
+	GMS2                       float64 // gravity used
 	// AtBarPlane is true when DM and VxMS were given.
 	AtBarPlane bool
 	TimeToBarS float64 // D/vx (AtBarPlane)
@@ -151,6 +161,9 @@ func Margin(in MarginInput) (MarginResult, error) {
 	}
 	if err := in.Sigma.validate(); err != nil {
 		return MarginResult{}, fmt.Errorf("margin: %w", err)
+	}
+	if err := in.Assumed.validate(); err != nil {
+		return MarginResult{}, fmt.Errorf("margin: assumed: %w", err)
 	}
 
 	// Flight inputs.
@@ -297,30 +310,39 @@ func Margin(in MarginInput) (MarginResult, error) {
 	r.Clears = r.MarginM > 0
 
 	// Uncertainty.
-	sg := in.Sigma
+	sg, sa := in.Sigma, in.Assumed
 	r.Contributions = make([]Contribution, 0, 10)
-	add := func(name string, sigma, sens float64, used bool) {
+	add := func(name string, typed, assumed, sens float64, used bool) {
+		sigma, isAssumed := typed, assumed > 0
+		if isAssumed {
+			sigma = assumed
+		}
 		if !used || sigma == 0 {
 			return
 		}
-		r.Contributions = append(r.Contributions, Contribution{Input: name, SigmaIn: sigma, Sensitivity: sens, SigmaM: math.Abs(sens) * sigma})
+		r.Contributions = append(r.Contributions, Contribution{Input: name, SigmaIn: sigma, Sensitivity: sens, SigmaM: math.Abs(sens) * sigma, Assumed: isAssumed})
 	}
-	add(FieldBar, sg.BarM, -1, true)
-	add(FieldH0, sg.H0M, dC.h0, needH0)
-	add(FieldVz, sg.VzMS, dC.vz, vzGiven)
-	add(FieldPeak, sg.PeakM, dC.peak, peakGiven)
-	add(FieldTakeoffDist, sg.DM, dC.dist, r.AtBarPlane)
-	add(FieldVx, sg.VxMS, dC.vx, r.AtBarPlane)
-	add(FieldArch, sg.ArchDeg, dSdArchDeg, usesArc)
-	add(FieldLength, sg.LengthM, dSdL, usesArc)
-	add(FieldDrop, sg.DropM, 1, !usesArc)
-	add(FieldDepth, sg.DepthM, -1, true)
+	add(FieldBar, sg.BarM, sa.BarM, -1, true)
+	add(FieldH0, sg.H0M, sa.H0M, dC.h0, needH0)
+	add(FieldVz, sg.VzMS, sa.VzMS, dC.vz, vzGiven)
+	add(FieldPeak, sg.PeakM, sa.PeakM, dC.peak, peakGiven)
+	add(FieldTakeoffDist, sg.DM, sa.DM, dC.dist, r.AtBarPlane)
+	add(FieldVx, sg.VxMS, sa.VxMS, dC.vx, r.AtBarPlane)
+	add(FieldArch, sg.ArchDeg, sa.ArchDeg, dSdArchDeg, usesArc)
+	add(FieldLength, sg.LengthM, sa.LengthM, dSdL, usesArc)
+	add(FieldDrop, sg.DropM, sa.DropM, 1, !usesArc)
+	add(FieldDepth, sg.DepthM, sa.DepthM, -1, true)
 	slices.SortStableFunc(r.Contributions, func(a, b Contribution) int { return cmp.Compare(b.SigmaM, a.SigmaM) })
-	var ss float64
+	var typed, assumed float64
 	for _, c := range r.Contributions {
-		ss += c.SigmaM * c.SigmaM
+		if c.Assumed {
+			assumed += c.SigmaM * c.SigmaM
+		} else {
+			typed += c.SigmaM * c.SigmaM
+		}
 	}
-	r.SigmaM = math.Sqrt(ss)
+	r.SigmaTypedM, r.SigmaAssumedM = math.Sqrt(typed), math.Sqrt(assumed)
+	r.SigmaM = math.Sqrt(typed + assumed)
 	if len(r.Contributions) > 0 {
 		r.Dominant = r.Contributions[0].Input
 	} else {
@@ -343,4 +365,15 @@ func (u Uncertainty) validate() error {
 		}
 	}
 	return nil
+}
+
+// LargestAssumed returns the largest contribution of an assumed input, and
+// false when nothing assumed contributes.
+func (r MarginResult) LargestAssumed() (Contribution, bool) {
+	for _, c := range r.Contributions { // largest first
+		if c.Assumed {
+			return c, true
+		}
+	}
+	return Contribution{}, false
 }

@@ -3,6 +3,7 @@ package mechanics
 import (
 	"fmt"
 	"math"
+	"strings"
 )
 
 // Quantity names a value the published-range table covers.
@@ -23,6 +24,7 @@ const (
 	QContactTime   Quantity = "contact time"          // take-off foot contact, s
 	QJumpTestTime  Quantity = "jump-test flight time" // countermovement jump, s
 	QClearHeight   Quantity = "height cleared"        // bar the c.m. would clear or peak-based best bar, m
+	QArch          Quantity = "arch"                  // the arc model's whole-body bend over the bar, degrees
 )
 
 // Level is the standard of the athletes a range was measured in.
@@ -99,6 +101,7 @@ func rangeTable() []PublishedRange {
 		{QContactTime, SexUnknown, Developing, 0.14, 0.26, "s", "longer contacts of slower jumpers (common practice)"},
 		{QJumpTestTime, SexUnknown, Elite, 0.55, 0.80, "s", "countermovement jumps of 0.37-0.78 m by t = √(8h/g), Bosco et al. 1983 (heights from memory)"},
 		{QJumpTestTime, SexUnknown, Developing, 0.35, 0.80, "s", "jumps of 0.15-0.78 m (common practice)"},
+		{QArch, SexUnknown, Elite, 60, 120, "°", "whole-body bend of a layout over the bar (common practice)"},
 		{QClearHeight, Male, Elite, 1.90, 2.45, "m", "men's world record 2.45 m (from memory)"},
 		{QClearHeight, Female, Elite, 1.70, 2.09, "m", "women's world record 2.09 m (from memory)"},
 		{QClearHeight, SexUnknown, Developing, 1.00, 2.45, "m", "up to the men's world record 2.45 m (from memory)"},
@@ -196,8 +199,12 @@ func CheckRange(q Quantity, v float64, sex Sex) (RangeFlag, bool) {
 	if f.Above {
 		dir = "above"
 	}
-	f.Line = fmt.Sprintf("%s %s is %s%s the %s measured in %s: check the number",
-		q, formatRangeValue(v, f.Range.Unit), far, dir, formatRangeSpan(f.Range), rangeWho(f.Range))
+	seen := "measured in"
+	if strings.Contains(f.Range.Source, "common practice") {
+		seen = "usual in" // a trade figure, not a measurement
+	}
+	f.Line = fmt.Sprintf("%s %s is %s%s the %s %s %s: check the number",
+		q, formatRangeValue(v, f.Range.Unit), far, dir, formatRangeSpan(f.Range), seen, rangeWho(f.Range))
 	return f, true
 }
 

@@ -50,10 +50,10 @@ func TestResolveAcrossPeakAtBar(t *testing.T) {
 	if math.Abs(a.MS-2.2288) > 1e-4 || !a.Assumed() || a.SigmaAssumedMS == 0 {
 		t.Errorf("across = %+v, want 2.2288 assumed with a spread", a)
 	}
-	to := Takeoff{H0M: 1.25, VzMS: 4.4, VxMS: a.MS}
-	x, _ := to.PeakDistance()
-	if math.Abs(x-1.0) > 1e-9 {
-		t.Errorf("peak distance %.4f m, want the take-off distance 1.0", x)
+	// Against a numerically integrated flight at that speed, the peak
+	// falls in the bar plane 1.0 m out.
+	if _, x, _ := numericPeak(1.25, 4.4, a.MS, StandardGravity); math.Abs(x-1.0) > 1e-3 {
+		t.Errorf("integrated peak %.4f m out, want the take-off distance 1.0", x)
 	}
 }
 

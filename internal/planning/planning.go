@@ -202,8 +202,11 @@ func total(hs []Height) float64 {
 
 // progression lays the bars from open to top: the meet's steps when known
 // (the first step at or above open, up to the first step at or above top),
-// otherwise 5 cm steps in practice and 3 cm at a meet, ending in a 2 cm
-// rise where a full step would overshoot. Every rise is at least 2 cm.
+// otherwise 5 cm steps in practice and 3 cm at a meet; where a full step
+// would overshoot the top or leave less than 2 cm under it, the last rises
+// are shortened so that the progression ends on the top with a rise of at
+// least 2 cm. Every rise is at least 2 cm (TR 26.4) once open is at least
+// 2 cm under top.
 func progression(in Input, open, top float64) []float64 {
 	if in.Kind == Meet && len(in.StepsM) > 0 {
 		var bars []float64
@@ -227,12 +230,15 @@ func progression(in Input, open, top float64) []float64 {
 	}
 	bars := []float64{open}
 	for b := open; b < top-barTolM; {
-		next := roundCM(b + step)
-		if next > top+barTolM {
-			next = top
-			if next-b < MinRiseM-1e-9 {
-				break
-			}
+		gap := top - b
+		var next float64
+		switch {
+		case gap <= step+barTolM || gap < 2*MinRiseM-barTolM:
+			next = top // the last rise lands on the top
+		case gap < step+MinRiseM-barTolM:
+			next = roundCM(top - MinRiseM) // leave a 2 cm last rise
+		default:
+			next = roundCM(b + step)
 		}
 		bars = append(bars, next)
 		b = next

@@ -129,3 +129,33 @@ func TestPlanProperties(t *testing.T) {
 		t.Errorf("no jumps: %v", err)
 	}
 }
+
+// TestProgressionEndsOnTop: the ladder ends on the top bar the reply names
+// ("top 2 cm over the ceiling"), every rise is at least 2 cm (TR 26.4) and,
+// at a meet, no rise is larger than the one before (TR 26.4, as CheckSteps
+// reads it). Found through the demo: open 1.61, top 1.74 used to stop at
+// 1.73 because a 1 cm last rise was dropped.
+func TestProgressionEndsOnTop(t *testing.T) {
+	for _, k := range []Kind{Practice, Meet} {
+		for openCM := 150; openCM <= 170; openCM++ {
+			for topCM := openCM + 2; topCM <= openCM+20; topCM++ {
+				open, top := float64(openCM)/100, float64(topCM)/100
+				bars := progression(Input{Kind: k}, open, top)
+				if last := bars[len(bars)-1]; math.Abs(last-top) > 1e-9 {
+					t.Fatalf("kind %d open %.2f top %.2f: ends at %.2f (%v)", k, open, top, last, bars)
+				}
+				for i := 1; i < len(bars); i++ {
+					rise := bars[i] - bars[i-1]
+					if rise < MinRiseM-1e-9 {
+						t.Fatalf("kind %d open %.2f top %.2f: rise %.3f in %v", k, open, top, rise, bars)
+					}
+				}
+				if k == Meet {
+					if err := CheckSteps(bars); err != nil && len(bars) > 2 {
+						t.Errorf("kind %d open %.2f top %.2f: %v in %v", k, open, top, err, bars)
+					}
+				}
+			}
+		}
+	}
+}

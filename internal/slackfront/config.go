@@ -178,7 +178,7 @@ func (cfg Config) withDefaults() (Config, Mode, error) {
 		cfg.APIURL = slack.APIURL
 	}
 	if u, err := url.Parse(cfg.APIURL); err != nil || (u.Scheme != "http" && u.Scheme != "https") || u.Host == "" {
-		errs = append(errs, fmt.Errorf("SLACK_API_URL %q is not an http(s) URL", cfg.APIURL))
+		errs = append(errs, fmt.Errorf("SLACK_API_URL %q is not an http(s) URL", RedactURL(cfg.APIURL)))
 	}
 	if !strings.HasSuffix(cfg.APIURL, "/") {
 		cfg.APIURL += "/"

@@ -18,15 +18,17 @@ import (
 // Front is the Slack front end. Build it with New, then call Run; PostReply
 // may be called at any time, also from other goroutines.
 type Front struct {
-	cfg    Config
-	mode   Mode
-	log    *slog.Logger
-	api    *slack.Client
-	apiURL *url.URL
-	users  Users
-	dir    *memberDirectory
-	gate   rateGate
-	busy   inflight
+	cfg     Config
+	mode    Mode
+	log     *slog.Logger
+	api     *slack.Client
+	apiURL  *url.URL
+	redact  Redactor // the credentials inside SLACK_API_URL, for errors and logs
+	notices *notices // "busy, nothing was done" answers in flight
+	users   Users
+	dir     *memberDirectory
+	gate    rateGate
+	busy    inflight
 	// transport is ours to close when Run returns (nil when the caller gave
 	// an HTTP client).
 	transport *http.Transport
@@ -50,15 +52,20 @@ type identity struct {
 
 // New checks cfg and builds a front end. It does not touch the network.
 func New(cfg Config) (*Front, error) {
+	red := NewRedactor(URLSecrets(cfg.APIURL)...)
 	cfg, mode, err := cfg.withDefaults()
 	if err != nil {
-		return nil, err
+		return nil, red.redactErr(err)
 	}
+	// Credentials inside SLACK_API_URL never reach a log line.
+	cfg.Logger = slog.New(NewRedactHandler(cfg.Logger.Handler(), red))
 	f := &Front{
-		cfg:   cfg,
-		mode:  mode,
-		log:   cfg.Logger.With("component", "slack", "mode", mode.String()),
-		ready: make(chan struct{}),
+		redact:  red,
+		notices: newNotices(),
+		cfg:     cfg,
+		mode:    mode,
+		log:     cfg.Logger.With("component", "slack", "mode", mode.String()),
+		ready:   make(chan struct{}),
 	}
 	f.apiURL, _ = url.Parse(cfg.APIURL) // checked in withDefaults
 	httpc := cfg.HTTPClient
@@ -108,6 +115,10 @@ func (f *Front) Addr() string {
 // only once serving starts; an error before that (including a ctx cancelled
 // during the start, which the error wraps) leaves it open.
 func (f *Front) Run(ctx context.Context) error {
+	return f.redact.redactErr(f.serve(ctx))
+}
+
+func (f *Front) serve(ctx context.Context) error {
 	if !f.running.CompareAndSwap(false, true) {
 		return errors.New("slack: Run called twice")
 	}
@@ -135,6 +146,7 @@ func (f *Front) Run(ctx context.Context) error {
 		err = f.serveSocket(ctx)
 	}
 	p.stop(f.cfg.ShutdownTimeout, f.log)
+	f.notices.wg.Wait()
 	f.log.Info("slack front end stopped")
 	return err
 }
@@ -153,9 +165,9 @@ func (f *Front) start(ctx context.Context) error {
 		case errors.As(err, &se) && fatalAuthCode(se.Err):
 			return fmt.Errorf("slack: Slack refused SLACK_BOT_TOKEN (%s): use the Bot User OAuth Token (xoxb-...) from the app's OAuth & Permissions page, and reinstall the app if it was revoked: %w", se.Err, err)
 		case errors.Is(actx.Err(), context.DeadlineExceeded), errors.As(err, &ne) && ne.Timeout():
-			return fmt.Errorf("slack: auth.test at %s did not answer within %s; check the network or SLACK_API_URL: %w", f.cfg.APIURL, f.cfg.StartTimeout, err)
+			return fmt.Errorf("slack: auth.test at %s did not answer within %s; check the network or SLACK_API_URL: %w", RedactURL(f.cfg.APIURL), f.cfg.StartTimeout, err)
 		default:
-			return fmt.Errorf("slack: auth.test at %s failed: %w", f.cfg.APIURL, err)
+			return fmt.Errorf("slack: auth.test at %s failed: %w", RedactURL(f.cfg.APIURL), err)
 		}
 	}
 	f.self = identity{UserID: res.UserID, BotID: res.BotID, TeamID: res.TeamID, Team: res.Team}

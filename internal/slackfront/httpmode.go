@@ -163,26 +163,31 @@ func readBody(w http.ResponseWriter, r *http.Request, limit int64) ([]byte, erro
 	return io.ReadAll(rd)
 }
 
+// errQueueFull refuses a delivery because the work queue is full: a
+// passing rush, so an event is left for Slack to send again.
+var errQueueFull = errors.New("slack: work queue is full")
+
 // accept stores a delivery in the inbox (when there is one) and queues its
-// work; false means it was refused and nothing will run: the inbox or the
-// queue is full, or the store failed.
-func (f *Front) accept(ctx context.Context, via string, body []byte, at time.Time, work []inbound) bool {
+// work; an error means it was refused and nothing will run: the inbox is
+// full (ErrInboxFull), the store failed, or the queue is full
+// (errQueueFull).
+func (f *Front) accept(ctx context.Context, via string, body []byte, at time.Time, work []inbound) error {
 	if err := f.store(ctx, via, body, at, work); err != nil {
 		if errors.Is(err, ErrInboxFull) {
 			f.log.Warn("inbox full; refused a delivery", "err", err)
 		} else {
 			f.log.Error("could not store a delivery; refused it", "err", err)
 		}
-		return false
+		return err
 	}
 	for _, in := range work {
 		if !f.pool.Load().offer(in) {
 			f.log.Warn("work queue full; refused a delivery", "queue", f.cfg.QueueSize)
 			f.unstore(ctx, work)
-			return false
+			return errQueueFull
 		}
 	}
-	return true
+	return nil
 }
 
 // retryOf reads X-Slack-Retry-Num: how many times Slack has sent this event
@@ -196,8 +201,10 @@ func retryOf(r *http.Request) int {
 }
 
 // handleEvents answers the Events API: the url_verification challenge, and
-// event callbacks, which are queued and acknowledged at once. A full queue
-// answers 503 so that Slack delivers the event again later.
+// event callbacks, which are stored, queued and acknowledged at once. A
+// full inbox acknowledges and tells the sender "busy, nothing was done"
+// (refuseBusy); a full queue answers 503 so that Slack delivers the event
+// again later.
 func (f *Front) handleEvents(w http.ResponseWriter, r *http.Request, body []byte) {
 	retry := retryOf(r)
 	ev, err := slackevents.ParseEvent(json.RawMessage(body), slackevents.OptionNoVerifyToken())
@@ -235,7 +242,11 @@ func (f *Front) handleEvents(w http.ResponseWriter, r *http.Request, body []byte
 		w.WriteHeader(http.StatusOK)
 		return
 	}
-	if !f.accept(r.Context(), viaEvent, body, f.cfg.Clock.Now(), []inbound{in}) {
+	if err := f.accept(r.Context(), viaEvent, body, f.cfg.Clock.Now(), []inbound{in}); err != nil {
+		if f.refuseBusy(err, []inbound{in}) {
+			w.WriteHeader(http.StatusOK) // the sender was told; Slack must not send it again
+			return
+		}
 		// Slack delivers an event that got no 2xx again, later.
 		http.Error(w, "busy, nothing was done", http.StatusServiceUnavailable)
 		return
@@ -252,7 +263,7 @@ func (f *Front) handleCommand(w http.ResponseWriter, r *http.Request, body []byt
 		return
 	}
 	now := f.cfg.Clock.Now()
-	if !f.accept(r.Context(), viaCommandForm, body, now, []inbound{f.fromSlash(cmd, retryOf(r), now)}) {
+	if f.accept(r.Context(), viaCommandForm, body, now, []inbound{f.fromSlash(cmd, retryOf(r), now)}) != nil {
 		w.Header().Set("Content-Type", "application/json")
 		_ = json.NewEncoder(w).Encode(map[string]string{"response_type": slack.ResponseTypeEphemeral, "text": busyText})
 		return
@@ -268,7 +279,12 @@ func (f *Front) handleInteractive(w http.ResponseWriter, r *http.Request, _ []by
 		return
 	}
 	now := f.cfg.Clock.Now()
-	if !f.accept(r.Context(), viaInteractive, []byte(r.PostFormValue("payload")), now, f.fromAction(cb, retryOf(r), now)) {
+	work := f.fromAction(cb, retryOf(r), now)
+	if err := f.accept(r.Context(), viaInteractive, []byte(r.PostFormValue("payload")), now, work); err != nil {
+		if f.refuseBusy(err, work) {
+			w.WriteHeader(http.StatusOK)
+			return
+		}
 		http.Error(w, "busy, nothing was done", http.StatusServiceUnavailable)
 		return
 	}

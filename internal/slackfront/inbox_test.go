@@ -119,8 +119,10 @@ func TestInboxStoredBeforeAck(t *testing.T) {
 	}
 }
 
-// A full inbox refuses: a slash command gets "busy, nothing was done", an
-// event a 503 (Slack sends it again later), and nothing runs.
+// A full inbox refuses: a slash command gets "busy, nothing was done" as
+// its answer, the sender of an event gets it as a reply only they see (and
+// the event is acknowledged, so Slack does not send it again), and nothing
+// runs.
 func TestInboxFullRefuses(t *testing.T) {
 	fs := newFakeSlack(t)
 	inbox := newMemInbox()
@@ -153,9 +155,15 @@ func TestInboxFullRefuses(t *testing.T) {
 	if res.StatusCode != http.StatusOK || !strings.Contains(body.String(), "nothing was done") {
 		t.Fatalf("slash command on a full inbox: %d %q", res.StatusCode, body.String())
 	}
+	// An event is acknowledged (Slack must not send again what the sender
+	// was told was not done) and the sender told, only them, in the thread.
 	ev := signedPost(t, client, base+"/slack/events", "application/json", mentionEvent("Ev-full", "C0JUMPS", "U0KAI", "<@UBOT> log Kai 1.95 o", "1700000060.000100"), time.Now(), nil)
-	if ev.StatusCode != http.StatusServiceUnavailable {
-		t.Fatalf("event on a full inbox: %d, want 503", ev.StatusCode)
+	if ev.StatusCode != http.StatusOK {
+		t.Fatalf("event on a full inbox: %d, want 200 and a busy answer", ev.StatusCode)
+	}
+	told := fs.waitCalls(t, "chat.postEphemeral", 1)[0]
+	if got := told.Form.Get("user") + " " + told.Form.Get("channel") + " " + string(told.Body) + told.Form.Encode(); !strings.Contains(got, "U0KAI") || !strings.Contains(got, "C0JUMPS") || !strings.Contains(got, "nothing+was+done") && !strings.Contains(got, "nothing was done") {
+		t.Fatalf("busy answer to the sender: %s", got)
 	}
 	time.Sleep(50 * time.Millisecond)
 	if n := len(h.requests()); n != 0 {

@@ -101,7 +101,7 @@ func Render(r bot.Reply) ([]slack.Block, string) {
 			bs = append(bs, slack.NewHeaderBlock(slack.NewTextBlockObject(slack.PlainTextType, title, true, false)))
 		} else {
 			// Too long for a header: a bold section instead, split as needed.
-			for _, p := range splitEscaped(escape(title), maxSectionText-2) {
+			for _, p := range splitEscaped(escapeText(title), maxSectionText-2) {
 				section("*" + p + "*")
 			}
 		}
@@ -119,7 +119,7 @@ func Render(r bot.Reply) ([]slack.Block, string) {
 		}
 	}
 	for _, f := range r.Fields {
-		t := escape(f.Value)
+		t := escapeText(f.Value)
 		if f.Label != "" {
 			t = "*" + escape(f.Label) + "*\n" + t
 		}
@@ -310,12 +310,12 @@ func tableTexts(t bot.Table) []string {
 				if i > 0 {
 					b.WriteString("  ")
 				}
-				b.WriteString(c)
+				b.WriteString(escapeText(c))
 				if i < len(row)-1 {
 					b.WriteString(strings.Repeat(" ", widths[i]-utf8.RuneCountInString(c)))
 				}
 			}
-			return escape(strings.TrimRight(b.String(), " "))
+			return strings.TrimRight(b.String(), " ")
 		}
 		head := ""
 		if len(t.Header) > 0 {
@@ -340,7 +340,7 @@ func tableTexts(t bot.Table) []string {
 	for _, row := range t.Rows {
 		var parts []string
 		for i, c := range row {
-			v := escape(c)
+			v := escapeText(c)
 			if i == 0 {
 				v = "*" + v + "*"
 			}
@@ -357,9 +357,12 @@ func tableTexts(t bot.Table) []string {
 	return pack(rows, maxSectionText)
 }
 
-// escape makes text safe for Slack mrkdwn: &, < and > become entities
-// (Slack's message formatting rules).
+// escape makes our own running text safe for Slack mrkdwn: &, < and >
+// become entities (Slack's message formatting rules) and a run of three
+// backticks (which only typed text brings in) cannot open a code block.
+// Typed text in cells and fields goes through escapeText instead.
 func escape(s string) string {
+	s = breakFences(s)
 	if !strings.ContainsAny(s, "&<>") {
 		return s
 	}

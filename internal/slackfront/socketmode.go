@@ -57,7 +57,7 @@ func (f *Front) serveSocket(ctx context.Context) error {
 			case err == nil:
 				return errors.New("slack: socket mode stopped without a reason")
 			default:
-				return socketFatal(f.cfg.APIURL, err)
+				return socketFatal(RedactURL(f.cfg.APIURL), err)
 			}
 		}
 	}
@@ -103,7 +103,7 @@ func (f *Front) onSocketEvent(ctx context.Context, sm *socketmode.Client, acc *a
 		if ce, ok := ev.Data.(*slack.ConnectionErrorEvent); ok {
 			var se slack.SlackErrorResponse
 			if errors.As(ce.ErrorObj, &se) && fatalAuthCode(se.Err) {
-				return socketFatal(f.cfg.APIURL, ce.ErrorObj)
+				return socketFatal(RedactURL(f.cfg.APIURL), ce.ErrorObj)
 			}
 			f.log.Warn("socket mode connection failed; retrying with backoff", "attempt", ce.Attempt, "backoff", ce.Backoff, "err", ce.ErrorObj)
 		}
@@ -171,16 +171,22 @@ func (a *accepting) run(fn func()) {
 // acceptEnvelope stores the envelope's work in the inbox, queues it, and
 // only then acknowledges it: what Slack was told we accepted is on disk.
 // A refusal (inbox or queue full, the store failing) sends the busy
-// payload, if any, as the acknowledgement; without one the envelope stays
-// unacknowledged and Slack delivers it again later.
+// payload, if any, as the acknowledgement; without one, a full inbox is
+// acknowledged and the sender told "busy, nothing was done" (refuseBusy),
+// and otherwise the envelope stays unacknowledged and Slack delivers it
+// again later.
 func (f *Front) acceptEnvelope(ctx context.Context, sm *socketmode.Client, req *socketmode.Request, via string, at time.Time, work []inbound, busy any) {
 	var payload []byte
 	if req != nil {
 		payload = req.Payload
 	}
-	if !f.accept(ctx, via, payload, at, work) {
+	if err := f.accept(ctx, via, payload, at, work); err != nil {
 		if busy != nil {
 			f.ack(ctx, sm, req, busy)
+			return
+		}
+		if f.refuseBusy(err, work) {
+			f.ack(ctx, sm, req, nil) // the sender was told "busy, nothing was done"
 			return
 		}
 		f.log.Warn("leaving an envelope for Slack to deliver again")

@@ -1,0 +1,57 @@
+package bot
+
+import (
+	"fmt"
+
+	"github.com/lathmark-team/lathmark/internal/meetsheet"
+)
+
+// meetTx is a Tx that also keeps the team's meet sheet: one open sheet at
+// a time, and the filed ones. store.Tx implements it (store/meet.go).
+type meetTx interface {
+	// OpenMeet returns the open sheet; ok is false when none is open.
+	OpenMeet() (s meetsheet.Sheet, ok bool, err error)
+	// PutOpenMeet stores the open sheet, replacing the one there.
+	PutOpenMeet(s meetsheet.Sheet) error
+	// FileMeet files the sheet and leaves no sheet open.
+	FileMeet(s meetsheet.Sheet) error
+}
+
+// sheets returns the transaction's meet sheets.
+func sheets(tx Tx) (meetTx, error) {
+	m, ok := tx.(meetTx)
+	if !ok {
+		return nil, fmt.Errorf("meet sheet: the store keeps no meet sheets")
+	}
+	return m, nil
+}
+
+// openSheet reads the open sheet; ok is false when none is open.
+func openSheet(tx Tx) (meetsheet.Sheet, bool, error) {
+	m, err := sheets(tx)
+	if err != nil {
+		return meetsheet.Sheet{}, false, err
+	}
+	return m.OpenMeet()
+}
+
+// mustOpenSheet reads the open sheet or refuses with how to open one.
+func mustOpenSheet(tx Tx) (meetsheet.Sheet, error) {
+	s, ok, err := openSheet(tx)
+	if err != nil {
+		return s, err
+	}
+	if !ok {
+		return s, notFoundErr(meetOpenExample, "no meet sheet is open; a coach opens one with meet open NAME [DATE] [steps ...]")
+	}
+	return s, nil
+}
+
+// putSheet stores the open sheet.
+func putSheet(tx Tx, s meetsheet.Sheet) error {
+	m, err := sheets(tx)
+	if err != nil {
+		return err
+	}
+	return m.PutOpenMeet(s)
+}
