@@ -527,27 +527,32 @@ func TestFaultBecomesDamage(t *testing.T) {
 	readAll := func(tx *store.Tx) error {
 		return tx.Attempts(id, time.Unix(0, 0), time.Now(), func(record.Attempt) error { return nil })
 	}
-	if err := db.View(ctx, readAll); !errors.Is(err, store.ErrDamaged) {
-		t.Errorf("view: %v, want ErrDamaged", err)
-	}
-	if err := db.Update(ctx, readAll); !errors.Is(err, store.ErrDamaged) {
-		t.Errorf("update: %v, want ErrDamaged", err)
-	}
-	// Two concurrent callers, so that bbolt's batch goroutine runs them.
+	// First, before any damage is known: concurrent callers, so that
+	// bbolt's batch goroutine runs them. (Once damage is known, Batch
+	// commits on the caller's goroutine.)
 	var wg sync.WaitGroup
-	batchErrs := make([]error, 2)
+	batchErrs := make([]error, 8)
+	gate := make(chan struct{})
 	for i := range batchErrs {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			<-gate
 			batchErrs[i] = db.Batch(ctx, readAll)
 		}()
 	}
+	close(gate)
 	wg.Wait()
 	for i, err := range batchErrs {
 		if !errors.Is(err, store.ErrDamaged) {
 			t.Errorf("batch %d: %v, want ErrDamaged", i, err)
 		}
+	}
+	if err := db.View(ctx, readAll); !errors.Is(err, store.ErrDamaged) {
+		t.Errorf("view: %v, want ErrDamaged", err)
+	}
+	if err := db.Update(ctx, readAll); !errors.Is(err, store.ErrDamaged) {
+		t.Errorf("update: %v, want ErrDamaged", err)
 	}
 	if err := db.View(ctx, func(tx *store.Tx) error { return nil }); err != nil {
 		t.Errorf("a view that reads nothing after the faults: %v", err)

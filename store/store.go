@@ -317,7 +317,10 @@ func (db *DB) Batch(ctx context.Context, fn func(*Tx) error) error {
 	// A writer with no company gains nothing from waiting MaxBatchDelay for
 	// one (and the runtime's timers fire a 0.2 ms delay only after about
 	// 1 ms on an idle process), so it commits at once as a plain Update.
-	if db.writers.Add(1) == 1 {
+	// Once damage was met, writers commit one at a time on their own
+	// goroutine: bbolt commits a batch on a goroutine of its own, where a
+	// fault or panic while it rebalances damaged pages could not be caught.
+	if db.writers.Add(1) == 1 || db.guard.damaged.Load() {
 		defer db.writers.Add(-1)
 		return db.Update(ctx, fn)
 	}
