@@ -73,6 +73,7 @@ type corruptStats struct {
 	missing                   int // copies where a read succeeded but records it should have found were absent
 	missingUnseenByCheck      int
 	botDamage, botOther       int // bot replies saying the file is damaged; other changed replies
+	caught                    int // copies where a read faulted or bbolt panicked, caught by the guard
 }
 
 // TestCorruptCopies makes many copies of a real data file (built here with
@@ -145,10 +146,10 @@ func TestCorruptCopies(t *testing.T) {
 	}
 	t.Logf("corruption summary: %d copies (%d with %d bits flipped, %d cut short) of a %d-byte file in %s: "+
 		"check found damage in %d, %d refused at open, reads reported damage in %d, %d read exactly as written; "+
-		"a read gave another value than written in %d (check passed %d of those); records absent from a read that succeeded in %d (check passed %d); the bot said the file is damaged in %d of %d replies, other changed replies %d; no run died",
+		"a read gave another value than written in %d (check passed %d of those); records absent from a read that succeeded in %d (check passed %d); the bot said the file is damaged in %d of %d replies, other changed replies %d; a fault or a panic inside bbolt was caught by the guard in %d; no run died",
 		st.copies, st.copies-st.truncated, st.bits, st.truncated, used, time.Since(start).Round(time.Millisecond),
 		st.checkFound, st.refusedAtOpen, st.readDamage, st.unchanged,
-		st.wrongValue, st.wrongUnseenByCheck, st.missing, st.missingUnseenByCheck, st.botDamage, len(botCommands)*(st.copies-st.refusedAtOpen), st.botOther)
+		st.wrongValue, st.wrongUnseenByCheck, st.missing, st.missingUnseenByCheck, st.botDamage, len(botCommands)*(st.copies-st.refusedAtOpen), st.botOther, st.caught)
 	if st.wrongValue > 0 {
 		t.Errorf("%d copies returned a damaged record as another value", st.wrongValue)
 	}
@@ -190,6 +191,12 @@ func corruptOne(t *testing.T, path, what string, wantDump storeDump, wantBot []s
 	}
 	if len(errs) > 0 {
 		st.readDamage++
+	}
+	for _, err := range errs {
+		if strings.Contains(err.Error(), "reading the file failed") {
+			st.caught++
+			break
+		}
 	}
 	wrong, missing := false, false
 	for _, k := range sortedKeys(got) {
