@@ -134,6 +134,9 @@ func (e *Engine) refusal(req Request, err error) Reply {
 	if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
 		return Reply{Kind: KindInternal, Title: "Not done", Lines: []string{"The bot is shutting down; nothing was changed. Please send it again in a minute."}, Ephemeral: true}
 	}
+	if r, ok := plainCauseReply(err); ok {
+		return r
+	}
 	e.log.Error("command failed", "text", req.Text, "user", req.UserID, "err", err)
 	return internalReply()
 }

@@ -1,5 +1,10 @@
 package bot
 
+import (
+	"errors"
+	"strings"
+)
+
 // UserError is a refusal meant for the person who typed the command: what
 // was wrong, in their words, and a correct example. Commands return it; the
 // engine turns it into a Reply. Any other error is the bot's own failure.
@@ -30,4 +35,26 @@ func conflictErr(example, format string, args ...any) *UserError {
 // example is something the speaker may do instead.
 func forbiddenErr(example, format string, args ...any) *UserError {
 	return &UserError{Kind: KindForbidden, Msg: userMsg(format, args), Example: example}
+}
+
+// plainCause is an error from below the engine (the store) that names its
+// cause in a sentence for the person, such as "the disk is full; nothing was
+// saved" or a damaged data file. The store logs these itself.
+type plainCause interface {
+	error
+	PlainCause() string
+}
+
+// plainCauseReply answers such an error with its own sentence instead of
+// "something went wrong".
+func plainCauseReply(err error) (Reply, bool) {
+	var pc plainCause
+	if !errors.As(err, &pc) {
+		return Reply{}, false
+	}
+	msg := pc.PlainCause()
+	if msg != "" {
+		msg = strings.ToUpper(msg[:1]) + msg[1:] + "."
+	}
+	return Reply{Kind: KindInternal, Title: "Not done", Lines: []string{msg}, Ephemeral: true}, true
 }

@@ -26,9 +26,9 @@ const BeforeRestoreSuffix = ".before-restore"
 // read transaction (bbolt tx.WriteTo): writers go on meanwhile and the copy
 // holds exactly the transactions committed before it began. It returns the
 // bytes written.
-func (db *DB) Backup(w io.Writer) (int64, error) {
-	var n int64
-	err := db.bolt.View(func(tx *bolt.Tx) error {
+func (db *DB) Backup(w io.Writer) (n int64, err error) {
+	defer db.guard.catch(&err, "backup", debug.SetPanicOnFault(true))
+	err = db.bolt.View(func(tx *bolt.Tx) error {
 		var err error
 		n, err = tx.WriteTo(w)
 		return err

@@ -383,7 +383,7 @@ func TestRestoreRefuses(t *testing.T) {
 		{name: "broken invariant", want: store.ErrInconsistent, backup: func(t *testing.T, dir, live string) string {
 			p := goodBackup(t, dir, live)
 			damage(t, p, func(tx *bolt.Tx) error {
-				return tx.Bucket([]byte("names")).Put([]byte("ghost"), binary.BigEndian.AppendUint64(nil, 77))
+				return tx.Bucket([]byte("names")).Put([]byte("ghost"), store.Seal([]byte("ghost"), binary.BigEndian.AppendUint64(nil, 77)))
 			})
 			return p
 		}},
@@ -484,29 +484,29 @@ func TestCheckFindsProblems(t *testing.T) {
 		want   string // in the error message
 	}{
 		{"names entry to no profile", func(tx *bolt.Tx) error {
-			return tx.Bucket([]byte("names")).Put([]byte("ghost"), id8(77))
+			return tx.Bucket([]byte("names")).Put([]byte("ghost"), store.Seal([]byte("ghost"), id8(77)))
 		}, "points to athlete 77"},
 		{"profile not indexed", func(tx *bolt.Tx) error {
 			return tx.Bucket([]byte("names")).Delete([]byte("checked athlete"))
 		}, "name index holds"},
 		{"attempt of a missing athlete", func(tx *bolt.Tx) error {
-			return tx.Bucket([]byte("attempts")).Put(attemptKey(9, base, 0), []byte(`{"athlete":9,"time":"2025-03-03T17:30:00Z","outcome":"o"}`))
+			return putSealed(tx, "attempts", attemptKey(9, base, 0), `{"athlete":9,"time":"2025-03-03T17:30:00Z","outcome":"o"}`)
 		}, "athlete 9 has no profile"},
 		{"attempt key and value disagree", func(tx *bolt.Tx) error {
-			return tx.Bucket([]byte("attempts")).Put(attemptKey(1, base, 5), []byte(`{"athlete":1,"time":"2025-03-03T17:30:00Z","seq":4,"outcome":"o"}`))
+			return putSealed(tx, "attempts", attemptKey(1, base, 5), `{"athlete":1,"time":"2025-03-03T17:30:00Z","seq":4,"outcome":"o"}`)
 		}, "seq 4"},
 		{"user linked to a missing athlete", func(tx *bolt.Tx) error {
-			return tx.Bucket([]byte("users")).Put([]byte("U1"), []byte(`{"id":"U1","athlete":5}`))
+			return putSealed(tx, "users", []byte("U1"), `{"id":"U1","athlete":5}`)
 		}, "linked to athlete 5"},
 		{"damaged profile", func(tx *bolt.Tx) error {
-			return tx.Bucket([]byte("athletes")).Put(id8(1), []byte(`{"id":1,`))
+			return putSealed(tx, "athletes", id8(1), `{"id":1,`)
 		}, "athlete 1:"},
 		{"schema version missing", func(tx *bolt.Tx) error {
 			return tx.Bucket([]byte("meta")).Delete([]byte("schema"))
 		}, "schema version 0"},
 		{"bucket missing", func(tx *bolt.Tx) error { return tx.DeleteBucket([]byte("seen")) }, "bucket seen missing"},
 		{"audit key malformed", func(tx *bolt.Tx) error {
-			return tx.Bucket([]byte("audit")).Put([]byte("short"), []byte(`{}`))
+			return putSealed(tx, "audit", []byte("short"), `{}`)
 		}, "audit key"},
 	}
 	for _, c := range cases {
@@ -526,4 +526,9 @@ func TestCheckFindsProblems(t *testing.T) {
 			}
 		})
 	}
+}
+
+// putSealed writes a record with the raw bbolt handle as the store seals it.
+func putSealed(tx *bolt.Tx, bucket string, key []byte, v string) error {
+	return tx.Bucket([]byte(bucket)).Put(key, store.Seal(key, []byte(v)))
 }

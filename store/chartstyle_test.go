@@ -76,12 +76,16 @@ func TestChartStyleBackfilledAtOpen(t *testing.T) {
 		for _, id := range ids {
 			k := binary.BigEndian.AppendUint64(nil, id)
 			var m map[string]any
-			if err := json.Unmarshal(b.Get(k), &m); err != nil {
+			p, err := store.Unseal(k, b.Get(k))
+			if err != nil {
+				return err
+			}
+			if err := json.Unmarshal(p, &m); err != nil {
 				return err
 			}
 			delete(m, "chart_style")
 			v, _ := json.Marshal(m)
-			if err := b.Put(k, v); err != nil {
+			if err := b.Put(k, store.Seal(k, v)); err != nil {
 				return err
 			}
 		}

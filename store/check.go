@@ -4,10 +4,11 @@ import (
 	"bytes"
 	"crypto/sha256"
 	"encoding/binary"
-	"encoding/json"
 	"errors"
 	"fmt"
+	"os"
 	"runtime/debug"
+	"slices"
 
 	bolt "go.etcd.io/bbolt"
 
@@ -59,11 +60,32 @@ func (db *DB) Check() (err error) {
 		return fmt.Errorf("store: check %s: begin: %w", db.path, err)
 	}
 	defer func() { _ = tx.Rollback() }()
-	// Our own scan first: it touches every data page from this goroutine,
-	// where catchFault turns a fault in the memory map into an error.
-	problems := invariants(tx)
-	for cerr := range tx.Check() {
-		problems.add("bbolt: %v", cerr)
+	// The page structure first, with plain reads (no memory map): bbolt's
+	// check runs on a goroutine of its own, where a fault in the map would
+	// kill the process, so it runs only on pages this walk found sound.
+	// The transaction keeps writers out meanwhile.
+	problems := &problemList{}
+	if f, err := os.Open(db.path); err != nil {
+		problems.add("pages: %v", err)
+	} else {
+		fi, err := f.Stat()
+		if err == nil {
+			walkPages(f, fi.Size(), problems)
+		} else {
+			problems.add("pages: %v", err)
+		}
+		_ = f.Close()
+	}
+	pagesSound := problems.n == 0
+	// Our own scan of the records, from this goroutine, where catchFault
+	// turns a fault in the memory map into an error.
+	invariants(tx, problems)
+	if pagesSound {
+		for cerr := range tx.Check() {
+			problems.add("bbolt: %v", cerr)
+		}
+	} else {
+		problems.add("bbolt's own page check was not run: the page structure is damaged")
 	}
 	if problems.n == 0 {
 		return nil
@@ -82,7 +104,7 @@ func (db *DB) Check() (err error) {
 func catchFault(err *error, what string, oldPanicOnFault bool) {
 	debug.SetPanicOnFault(oldPanicOnFault)
 	if r := recover(); r != nil {
-		*err = fmt.Errorf("%s: damaged file: %v: %w", what, r, ErrInconsistent)
+		*err = fmt.Errorf("%s: %w", what, damagedFile(fmt.Errorf("reading the file failed (%v)", r)))
 	}
 }
 
@@ -98,9 +120,10 @@ func (p *problemList) add(format string, args ...any) {
 	}
 }
 
-// invariants checks the data against the layout described at SchemaVersion.
-func invariants(tx *bolt.Tx) *problemList {
-	p := &problemList{}
+// invariants checks the data against the layout described at SchemaVersion,
+// adding what it finds to p.
+func invariants(tx *bolt.Tx, p *problemList) {
+	start := p.n
 	v, err := readSchema(tx)
 	switch {
 	case err != nil:
@@ -114,15 +137,13 @@ func invariants(tx *bolt.Tx) *problemList {
 			p.add("bucket %s missing", name)
 		}
 	}
-	if p.n > 0 {
-		return p
+	if p.n > start {
+		return
 	}
 
-	if v := b[bucketTeam].Get([]byte(keySettings)); v != nil {
-		var team record.Team
-		if err := json.Unmarshal(v, &team); err != nil {
-			p.add("team settings: %v", err)
-		}
+	var team record.Team
+	if _, err := getJSON(b[bucketTeam], []byte(keySettings), &team); err != nil {
+		p.add("team settings: %v", err)
 	}
 
 	athleteIDs := map[uint64]bool{}
@@ -135,7 +156,7 @@ func invariants(tx *bolt.Tx) *problemList {
 		id := binary.BigEndian.Uint64(k)
 		athleteIDs[id] = true
 		var a record.Athlete
-		if err := json.Unmarshal(v, &a); err != nil {
+		if err := decodeJSON(k, v, &a); err != nil {
 			p.add("athlete %d: %v", id, err)
 			return nil
 		}
@@ -148,18 +169,18 @@ func invariants(tx *bolt.Tx) *problemList {
 		key := foldName(a.Name)
 		if key == "" {
 			p.add("athlete %d: empty name", id)
-		} else if got := b[bucketNames].Get([]byte(key)); !bytes.Equal(got, k) {
-			p.add("athlete %d (%q): name index holds %x, want %x", id, a.Name, got, k)
+		} else if got, ok, err := getValue(b[bucketNames], []byte(key)); err != nil || !ok || !bytes.Equal(got, k) {
+			p.add("athlete %d (%q): name index holds %x (%v), want %x", id, a.Name, got, err, k)
 		}
 		return nil
 	})
 
 	_ = b[bucketNames].ForEach(func(k, v []byte) error {
-		if len(v) != idLen {
-			p.add("names entry %q is %d bytes, want %d", k, len(v), idLen)
+		id, err := decodeID(k, v)
+		if err != nil {
+			p.add("names entry %q: %v", k, err)
 			return nil
 		}
-		id := binary.BigEndian.Uint64(v)
 		a, ok, err := getAthlete(b[bucketAthletes], id)
 		switch {
 		case err != nil:
@@ -184,7 +205,7 @@ func invariants(tx *bolt.Tx) *problemList {
 			p.add("attempt %x: athlete %d has no profile", k, id)
 		}
 		var a record.Attempt
-		if err := json.Unmarshal(v, &a); err != nil {
+		if err := decodeJSON(k, v, &a); err != nil {
 			p.add("attempt %x: %v", k, err)
 			return nil
 		}
@@ -205,7 +226,7 @@ func invariants(tx *bolt.Tx) *problemList {
 		by := string(k[:len(k)-lineTail])
 		n := binary.BigEndian.Uint64(k[len(k)-lineTail+1:])
 		var l record.Line
-		if err := json.Unmarshal(v, &l); err != nil {
+		if err := decodeJSON(k, v, &l); err != nil {
 			p.add("line %q: %v", k, err)
 			return nil
 		}
@@ -220,7 +241,7 @@ func invariants(tx *bolt.Tx) *problemList {
 
 	_ = b[bucketUsers].ForEach(func(k, v []byte) error {
 		var u record.User
-		if err := json.Unmarshal(v, &u); err != nil {
+		if err := decodeJSON(k, v, &u); err != nil {
 			p.add("user %q: %v", k, err)
 			return nil
 		}
@@ -235,8 +256,8 @@ func invariants(tx *bolt.Tx) *problemList {
 
 	for _, name := range []string{bucketSeen, bucketDigests} {
 		_ = b[name].ForEach(func(k, v []byte) error {
-			if len(v) != nanosLen {
-				p.add("%s entry %q: time value is %d bytes, want %d", name, k, len(v), nanosLen)
+			if _, err := decodeTime(k, v); err != nil {
+				p.add("%s entry %q: %v", name, k, err)
 			}
 			return nil
 		})
@@ -249,7 +270,7 @@ func invariants(tx *bolt.Tx) *problemList {
 			return nil
 		}
 		var e record.AuditEntry
-		if err := json.Unmarshal(v, &e); err != nil {
+		if err := decodeJSON(k, v, &e); err != nil {
 			p.add("audit %x: %v", k, err)
 			return nil
 		}
@@ -262,7 +283,39 @@ func invariants(tx *bolt.Tx) *problemList {
 		return nil
 	})
 	inboxInvariants(tx, p)
-	return p
+	sealInvariants(tx, p)
+}
+
+// checkedElsewhere lists the buckets whose values invariants decodes
+// record by record; sealInvariants checks the seals of all the others
+// (hints, and any bucket added later).
+func checkedElsewhere() []string {
+	return []string{bucketMeta, bucketTeam, bucketAthletes, bucketNames, bucketAttempts, bucketLines,
+		bucketUsers, bucketSeen, bucketAudit, bucketDigests, bucketInbox}
+}
+
+// sealInvariants checks that every value of the other buckets unseals.
+func sealInvariants(tx *bolt.Tx, p *problemList) {
+	skip := checkedElsewhere()
+	_ = tx.ForEach(func(name []byte, b *bolt.Bucket) error {
+		if slices.Contains(skip, string(name)) {
+			return nil
+		}
+		return b.ForEach(func(k, v []byte) error {
+			if v == nil {
+				p.add("%s: nested bucket %q", name, k)
+			} else if _, err := unseal(k, v); err != nil {
+				p.add("%s: %v", name, err)
+			}
+			return nil
+		})
+	})
+}
+
+// damagedFile marks err, found by reading the file's structure, as damage:
+// it matches both ErrDamaged and ErrInconsistent.
+func damagedFile(err error) error {
+	return fmt.Errorf("%v: %w (%w)", err, ErrDamaged, ErrInconsistent)
 }
 
 // Stats counts the records in each bucket.
@@ -281,9 +334,10 @@ type Stats struct {
 }
 
 // Stats returns the record counts per bucket, read in one transaction.
-func (db *DB) Stats() (Stats, error) {
+func (db *DB) Stats() (_ Stats, err error) {
+	defer db.guard.catch(&err, "stats", debug.SetPanicOnFault(true))
 	var s Stats
-	err := db.bolt.View(func(tx *bolt.Tx) error {
+	err = db.bolt.View(func(tx *bolt.Tx) error {
 		v, err := readSchema(tx)
 		if err != nil {
 			return err
@@ -324,7 +378,8 @@ func (db *DB) Stats() (Stats, error) {
 // name and sequence, then each key and value in key order, every field
 // preceded by its 8-byte big-endian length. Equal checksums mean equal
 // contents (tests use it to prove a refused write changed nothing).
-func (db *DB) Checksum() ([32]byte, error) {
+func (db *DB) Checksum() (_ [32]byte, err error) {
+	defer db.guard.catch(&err, "checksum", debug.SetPanicOnFault(true))
 	h := sha256.New()
 	field := func(b []byte) {
 		_, _ = h.Write(binary.BigEndian.AppendUint64(nil, uint64(len(b))))
@@ -343,7 +398,7 @@ func (db *DB) Checksum() ([32]byte, error) {
 			return walk(b.Bucket(k))
 		})
 	}
-	err := db.bolt.View(func(tx *bolt.Tx) error {
+	err = db.bolt.View(func(tx *bolt.Tx) error {
 		return tx.ForEach(func(name []byte, b *bolt.Bucket) error {
 			field(name)
 			return walk(b)

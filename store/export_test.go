@@ -18,3 +18,10 @@ func OpenWithNext(path string, opts Options, next func(*bolt.Tx) error) (*DB, er
 	ms[SchemaVersion] = migration{name: "test step", run: next}
 	return openWith(path, opts, ms, SchemaVersion+1)
 }
+
+// Seal returns v as the store writes it under key (v and its checksum), for
+// tests that write records with the raw bbolt handle.
+func Seal(key, v []byte) []byte { return seal(key, v) }
+
+// Unseal checks a raw stored value and returns its payload.
+func Unseal(key, v []byte) ([]byte, error) { return unseal(key, v) }

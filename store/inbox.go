@@ -84,7 +84,7 @@ func (db *DB) InboxPut(ctx context.Context, e InboxEntry, limit int) error {
 		if limit > 0 && n >= uint64(limit) {
 			return fmt.Errorf("store: inbox put: %d entries waiting: %w", n, ErrInboxFull)
 		}
-		if err := b.Put(key, data); err != nil {
+		if err := putValue(b, key, data); err != nil {
 			return fmt.Errorf("store: inbox put: %w", err)
 		}
 		return b.SetSequence(n + 1)
@@ -162,8 +162,8 @@ func (db *DB) InboxEntries(ctx context.Context) ([]InboxEntry, error) {
 		}
 		return b.ForEach(func(k, v []byte) error {
 			var iv inboxValue
-			if err := json.Unmarshal(v, &iv); err != nil {
-				return fmt.Errorf("store: inbox entry %x: decode: %w", k, err)
+			if err := decodeJSON(k, v, &iv); err != nil {
+				return fmt.Errorf("store: inbox entry %x: %w", k, err)
 			}
 			out = append(out, InboxEntry{ID: hex.EncodeToString(k), Key: iv.Key, At: iv.At, Payload: iv.Payload})
 			return nil
@@ -187,7 +187,7 @@ func inboxInvariants(tx *bolt.Tx, p *problemList) {
 			p.add("inbox key %x is %d bytes, want 16", k, len(k))
 		}
 		var iv inboxValue
-		if err := json.Unmarshal(v, &iv); err != nil {
+		if err := decodeJSON(k, v, &iv); err != nil {
 			p.add("inbox entry %x: %v", k, err)
 		}
 		return nil

@@ -2,7 +2,6 @@ package store
 
 import (
 	"bytes"
-	"encoding/json"
 	"errors"
 	"fmt"
 
@@ -29,14 +28,11 @@ func (t *Tx) OpenMeet() (meetsheet.Sheet, bool, error) {
 	if b == nil {
 		return s, false, nil
 	}
-	v := b.Get(keyOpenMeet)
-	if v == nil {
-		return s, false, nil
+	ok, err := getJSON(b, keyOpenMeet, &s)
+	if err != nil {
+		return meetsheet.Sheet{}, false, fmt.Errorf("store: open meet sheet: %w", err)
 	}
-	if err := json.Unmarshal(v, &s); err != nil {
-		return s, false, fmt.Errorf("store: open meet sheet: %w", err)
-	}
-	return s, true, nil
+	return s, ok, nil
 }
 
 // PutOpenMeet stores the open sheet, replacing the one there.
@@ -84,14 +80,18 @@ func (t *Tx) FiledMeets(fn func(meetsheet.Sheet) error) error {
 func forEachFiled(b *bolt.Bucket, fn func(meetsheet.Sheet) error) error {
 	prefix := []byte("filed\x00")
 	c := b.Cursor()
-	for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
+	k, v := c.Seek(prefix)
+	for ; k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
 		var s meetsheet.Sheet
-		if err := json.Unmarshal(v, &s); err != nil {
+		if err := decodeJSON(k, v, &s); err != nil {
 			return fmt.Errorf("store: filed meet sheet %q: %w", k, err)
 		}
 		if err := fn(s); err != nil {
 			return err
 		}
+	}
+	if err := soundAt(k, v); err != nil {
+		return fmt.Errorf("store: filed meet sheets: %w", err)
 	}
 	return nil
 }

@@ -1,6 +1,7 @@
 package store
 
 import (
+	"bytes"
 	"encoding/binary"
 	"fmt"
 	"slices"
@@ -24,7 +25,12 @@ import (
 //	seen      message or event id -> UnixNano(8) BE
 //	audit     UnixNano(8) + bucket sequence(8), BE -> JSON record.AuditEntry
 //	digests   ISO week "2026-W49" -> UnixNano(8) BE
-const SchemaVersion uint64 = 1
+//
+// Version 2 keeps that layout and seals every value (see seal.go): the
+// value above followed by the CRC-32C of key and value, 4 bytes BE. That
+// includes the schema version itself and the buckets created at open
+// (inbox, hints). Migrating from version 1 seals the values in place.
+const SchemaVersion uint64 = 2
 
 // Bucket names.
 const (
@@ -64,6 +70,7 @@ type migration struct {
 func migrations() map[uint64]migration {
 	return map[uint64]migration{
 		0: {name: "create the version 1 buckets", run: migrateCreateV1},
+		1: {name: "seal every value with its checksum", run: migrateSealV2},
 	}
 }
 
@@ -92,7 +99,38 @@ func migrateCreateV1(tx *bolt.Tx) error {
 	return nil
 }
 
+// migrateSealV2 seals every value of every top-level bucket but meta (whose
+// version key prepareSchema rewrites sealed). Values are read first and
+// written after: a Put under a live cursor may skip keys.
+func migrateSealV2(tx *bolt.Tx) error {
+	return tx.ForEach(func(name []byte, b *bolt.Bucket) error {
+		if string(name) == bucketMeta {
+			return nil
+		}
+		var keys, vals [][]byte
+		if err := b.ForEach(func(k, v []byte) error {
+			if v == nil {
+				return fmt.Errorf("bucket %s: nested bucket %q: not a lathmark layout", name, k)
+			}
+			keys, vals = append(keys, bytes.Clone(k)), append(vals, bytes.Clone(v))
+			return nil
+		}); err != nil {
+			return err
+		}
+		for i, k := range keys {
+			if err := putValue(b, k, vals[i]); err != nil {
+				return fmt.Errorf("bucket %s: seal %q: %w", name, shortKey(k), err)
+			}
+		}
+		return nil
+	})
+}
+
+// legacySchemaLen is the unsealed version value of schema version 1 files.
+const legacySchemaLen = 8
+
 // readSchema returns the version recorded in tx's meta bucket, 0 if none.
+// Version 1 stored it unsealed; later versions seal it.
 func readSchema(tx *bolt.Tx) (uint64, error) {
 	meta := tx.Bucket([]byte(bucketMeta))
 	if meta == nil {
@@ -102,10 +140,20 @@ func readSchema(tx *bolt.Tx) (uint64, error) {
 	if v == nil {
 		return 0, nil
 	}
-	if len(v) != 8 {
-		return 0, fmt.Errorf("schema version is %d bytes, want 8", len(v))
+	if len(v) == legacySchemaLen {
+		if n := binary.BigEndian.Uint64(v); n == 1 {
+			return n, nil
+		}
+		return 0, fmt.Errorf("unsealed schema version %x: %w", v, ErrDamaged)
 	}
-	return binary.BigEndian.Uint64(v), nil
+	p, err := unseal([]byte(keySchema), v)
+	if err != nil {
+		return 0, fmt.Errorf("schema version: %w", err)
+	}
+	if len(p) != 8 {
+		return 0, fmt.Errorf("schema version is %d bytes, want 8", len(p))
+	}
+	return binary.BigEndian.Uint64(p), nil
 }
 
 // prepareSchema checks the file's version and, for a read-write open, runs
@@ -142,7 +190,7 @@ func (db *DB) prepareSchema(ms map[uint64]migration, target uint64) error {
 		if err != nil {
 			return fmt.Errorf("create bucket %s: %w", bucketMeta, err)
 		}
-		return meta.Put([]byte(keySchema), binary.BigEndian.AppendUint64(nil, target))
+		return putValue(meta, []byte(keySchema), binary.BigEndian.AppendUint64(nil, target))
 	})
 	if err != nil {
 		return fmt.Errorf("store: open %s: %w", db.path, err)

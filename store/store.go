@@ -9,6 +9,14 @@
 // transaction through DB.View, DB.Update or DB.Batch and read and write
 // through the methods of Tx.
 //
+// Every value is stored sealed with a CRC-32C of its key and value and
+// checked on every read (seal.go): write and read stored values only
+// through putJSON/getJSON/decodeJSON, putValue/getValue and
+// putTime/getTime (TestNoUnsealedAccess enforces it), and a new bucket is
+// covered as it stands. Damage read, or a fault of the memory map while
+// reading, is an error matching ErrDamaged; a commit refused for space,
+// ErrDiskFull.
+//
 // The data file holds personal data (names, body measures, birth years of
 // athletes who may be minors): it is created readable by its owner only
 // (mode 0600, directory 0700), and backups get the same mode.
@@ -67,7 +75,8 @@ type Options struct {
 	// DefaultInitialMmapSize. (On Windows bbolt grows the file to it.)
 	InitialMmapSize int
 	// Logger receives the warning when an existing data file was readable
-	// by others and Open tightened it to 0600; nil discards.
+	// by others and Open tightened it to 0600, and the first damage a
+	// transaction meets (see ErrDamaged); nil discards.
 	Logger *slog.Logger
 }
 
@@ -130,6 +139,7 @@ type DB struct {
 	bolt     *bolt.DB
 	path     string
 	readOnly bool
+	guard    txGuard
 }
 
 // Open opens the data file at path, creating it (mode 0600, parent
@@ -172,6 +182,12 @@ func openWith(path string, opts Options, ms map[uint64]migration, target uint64)
 			return nil, err
 		}
 	}
+	// The quick check: two page reads, before bbolt maps anything.
+	if err := quickCheckFile(path); errors.Is(err, errNotBolt) {
+		return nil, fmt.Errorf("store: open %s: %w", path, err)
+	} else if err != nil {
+		return nil, fmt.Errorf("store: open %s: %w", path, damagedFile(err))
+	}
 	bdb, err := bolt.Open(path, fileMode, &bolt.Options{Timeout: timeout, ReadOnly: opts.ReadOnly, InitialMmapSize: mmapSize})
 	if errors.Is(err, bolterrors.ErrTimeout) {
 		return nil, &LockedError{Path: path, Waited: timeout, err: err}
@@ -186,6 +202,7 @@ func openWith(path string, opts Options, ms map[uint64]migration, target uint64)
 		bdb.MaxBatchDelay = opts.MaxBatchDelay
 	}
 	db := &DB{bolt: bdb, path: path, readOnly: opts.ReadOnly}
+	db.guard.log, db.guard.path = opts.Logger, path
 	if err := db.checkSize(); err != nil {
 		_ = bdb.Close()
 		return nil, err
@@ -238,11 +255,14 @@ func (db *DB) Close() error {
 }
 
 // View runs fn in one read-only transaction. It returns ctx's error without
-// starting if ctx is already done, and otherwise fn's error unchanged.
-func (db *DB) View(ctx context.Context, fn func(*Tx) error) error {
+// starting if ctx is already done, and otherwise fn's error unchanged. A
+// fault of the memory map while fn reads (a damaged file) ends fn and is
+// returned as an error matching ErrDamaged (see txGuard).
+func (db *DB) View(ctx context.Context, fn func(*Tx) error) (err error) {
 	if err := ctx.Err(); err != nil {
 		return fmt.Errorf("store: view not started: %w", err)
 	}
+	defer db.guard.catch(&err, "view", debug.SetPanicOnFault(true))
 	tx, err := db.bolt.Begin(false)
 	if err != nil {
 		return fmt.Errorf("store: begin view: %w", err)
@@ -253,31 +273,31 @@ func (db *DB) View(ctx context.Context, fn func(*Tx) error) error {
 
 // Update runs fn in one read-write transaction and commits iff fn returns
 // nil and ctx is still live; otherwise nothing fn wrote is kept. It does not
-// start if ctx is already done. fn's own error is returned unchanged.
-func (db *DB) Update(ctx context.Context, fn func(*Tx) error) error {
+// start if ctx is already done. fn's own error is returned unchanged; a
+// commit that fails for a full disk matches ErrDiskFull, and a fault of the
+// memory map (a damaged file) matches ErrDamaged.
+func (db *DB) Update(ctx context.Context, fn func(*Tx) error) (err error) {
 	if err := ctx.Err(); err != nil {
 		return fmt.Errorf("store: update not started: %w", err)
 	}
+	defer db.guard.catch(&err, "update", debug.SetPanicOnFault(true))
 	tx, err := db.bolt.Begin(true)
 	if err != nil {
 		return fmt.Errorf("store: begin update: %w", err)
 	}
-	committed := false
-	defer func() {
-		if !committed {
-			_ = tx.Rollback()
-		}
-	}()
+	// Rolls back unless committed; after Commit (which rolls back itself on
+	// failure) it is a no-op. It also runs while a fault unwinds.
+	defer func() { _ = tx.Rollback() }()
 	if err := fn(&Tx{tx: tx}); err != nil {
 		return err
 	}
 	if err := ctx.Err(); err != nil {
 		return fmt.Errorf("store: update rolled back: %w", err)
 	}
-	committed = true
 	if err := tx.Commit(); err != nil {
-		return fmt.Errorf("store: commit: %w", err)
+		return db.guard.commitFailed(err)
 	}
+	db.guard.committed()
 	return nil
 }
 
@@ -297,10 +317,24 @@ func (db *DB) Batch(ctx context.Context, fn func(*Tx) error) error {
 	// A writer with no company gains nothing from waiting MaxBatchDelay for
 	// one (and the runtime's timers fire a 0.2 ms delay only after about
 	// 1 ms on an idle process), so it commits at once as a plain Update.
-	if db.writers.Add(1) == 1 {
+	// Once damage was met, writers commit one at a time on their own
+	// goroutine: bbolt commits a batch on a goroutine of its own, where a
+	// fault or panic while it rebalances damaged pages could not be caught.
+	if db.writers.Add(1) == 1 || db.guard.damaged.Load() {
 		defer db.writers.Add(-1)
 		return db.Update(ctx, fn)
 	}
 	defer db.writers.Add(-1)
-	return db.bolt.Batch(func(tx *bolt.Tx) error { return fn(&Tx{tx: tx}) })
+	err := db.bolt.Batch(func(tx *bolt.Tx) (err error) {
+		// bbolt runs this on its own batch goroutine: guard it there.
+		defer db.guard.catch(&err, "batch", debug.SetPanicOnFault(true))
+		return fn(&Tx{tx: tx})
+	})
+	switch {
+	case err == nil:
+		db.guard.committed()
+	case !errors.Is(err, ErrDamaged) && isDiskFull(err):
+		return db.guard.commitFailed(err)
+	}
+	return err
 }

@@ -135,7 +135,7 @@ func setSchema(tx *bolt.Tx, v uint64) error {
 	if err != nil {
 		return err
 	}
-	return b.Put([]byte("schema"), binary.BigEndian.AppendUint64(nil, v))
+	return b.Put([]byte("schema"), store.Seal([]byte("schema"), binary.BigEndian.AppendUint64(nil, v)))
 }
 
 func TestFileModes(t *testing.T) {
@@ -333,8 +333,8 @@ func TestMigrations(t *testing.T) {
 			_, err := tx.CreateBucket([]byte("meta"))
 			return err
 		}, wantVer: store.SchemaVersion},
-		{name: "version 0 to 2 in one run", next: markStep, wantVer: store.SchemaVersion + 1, wantMark: true},
-		{name: "version 1 to 2", start: func(tx *bolt.Tx) error { return makeV1(tx) }, next: markStep, wantVer: store.SchemaVersion + 1, wantMark: true},
+		{name: "version 0 to the test step in one run", next: markStep, wantVer: store.SchemaVersion + 1, wantMark: true},
+		{name: "version 1 to the test step", start: func(tx *bolt.Tx) error { return makeV1(tx) }, next: markStep, wantVer: store.SchemaVersion + 1, wantMark: true},
 		{name: "failing step leaves the file alone", start: func(tx *bolt.Tx) error { return makeV1(tx) }, next: func(tx *bolt.Tx) error {
 			if err := markStep(tx); err != nil {
 				return err
@@ -396,14 +396,15 @@ func TestMigrations(t *testing.T) {
 	}
 }
 
-// makeV1 lays out an empty version 1 file by hand.
+// makeV1 lays out an empty version 1 file by hand (version 1 stored its
+// schema version unsealed).
 func makeV1(tx *bolt.Tx) error {
 	for _, n := range []string{"meta", "team", "athletes", "names", "attempts", "lines", "users", "seen", "audit", "digests"} {
 		if _, err := tx.CreateBucket([]byte(n)); err != nil {
 			return err
 		}
 	}
-	return setSchema(tx, 1)
+	return tx.Bucket([]byte("meta")).Put([]byte("schema"), binary.BigEndian.AppendUint64(nil, 1))
 }
 
 func markStep(tx *bolt.Tx) error {

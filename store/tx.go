@@ -3,7 +3,6 @@ package store
 import (
 	"bytes"
 	"encoding/binary"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"strings"
@@ -39,7 +38,8 @@ type Tx struct {
 func (t *Tx) bucket(name string) (*bolt.Bucket, error) {
 	b := t.tx.Bucket([]byte(name))
 	if b == nil {
-		return nil, fmt.Errorf("bucket %s missing from the data file", name)
+		// Open creates every bucket, so a missing one is damage.
+		return nil, fmt.Errorf("bucket %s missing from the data file: %w", name, ErrDamaged)
 	}
 	return b, nil
 }
@@ -57,14 +57,6 @@ func (t *Tx) buckets(names ...string) ([]*bolt.Bucket, error) {
 	return bs, nil
 }
 
-func putJSON(b *bolt.Bucket, key []byte, v any) error {
-	data, err := json.Marshal(v)
-	if err != nil {
-		return fmt.Errorf("encode: %w", err)
-	}
-	return b.Put(key, data)
-}
-
 // Team returns the team settings, the zero value if never set.
 func (t *Tx) Team() (record.Team, error) {
 	var team record.Team
@@ -72,12 +64,8 @@ func (t *Tx) Team() (record.Team, error) {
 	if err != nil {
 		return team, fmt.Errorf("store: team: %w", err)
 	}
-	v := b.Get([]byte(keySettings))
-	if v == nil {
-		return team, nil
-	}
-	if err := json.Unmarshal(v, &team); err != nil {
-		return record.Team{}, fmt.Errorf("store: team: decode: %w", err)
+	if _, err := getJSON(b, []byte(keySettings), &team); err != nil {
+		return record.Team{}, fmt.Errorf("store: team: %w", err)
 	}
 	return team, nil
 }
@@ -95,15 +83,12 @@ func (t *Tx) PutTeam(team record.Team) error {
 }
 
 func getAthlete(b *bolt.Bucket, id uint64) (record.Athlete, bool, error) {
-	v := b.Get(idKey(id))
-	if v == nil {
-		return record.Athlete{}, false, nil
-	}
 	var a record.Athlete
-	if err := json.Unmarshal(v, &a); err != nil {
-		return record.Athlete{}, false, fmt.Errorf("decode athlete %d: %w", id, err)
+	ok, err := getJSON(b, idKey(id), &a)
+	if err != nil {
+		return record.Athlete{}, false, fmt.Errorf("athlete %d: %w", id, err)
 	}
-	return a, true, nil
+	return a, ok, nil
 }
 
 // AthleteByID returns the profile with the given id.
@@ -132,12 +117,15 @@ func (t *Tx) AthleteByName(name string) (record.Athlete, bool, error) {
 	}
 	v := bs[0].Get([]byte(key))
 	if v == nil {
+		if err := missSound(bs[0], []byte(key)); err != nil {
+			return record.Athlete{}, false, fmt.Errorf("store: athlete %q: name index: %w", name, err)
+		}
 		return record.Athlete{}, false, nil
 	}
-	if len(v) != idLen {
-		return record.Athlete{}, false, fmt.Errorf("store: athlete %q: name index value is %d bytes, want %d", name, len(v), idLen)
+	id, err := decodeID([]byte(key), v)
+	if err != nil {
+		return record.Athlete{}, false, fmt.Errorf("store: athlete %q: name index: %w", name, err)
 	}
-	id := binary.BigEndian.Uint64(v)
 	a, ok, err := getAthlete(bs[1], id)
 	if err == nil && !ok {
 		err = fmt.Errorf("name index points to athlete %d, which has no profile", id)
@@ -156,10 +144,11 @@ func (t *Tx) Athletes() ([]record.Athlete, error) {
 	}
 	var out []record.Athlete
 	err = bs[0].ForEach(func(k, v []byte) error {
-		if len(v) != idLen {
-			return fmt.Errorf("name index entry %q is %d bytes, want %d", k, len(v), idLen)
+		id, err := decodeID(k, v)
+		if err != nil {
+			return fmt.Errorf("name index entry %q: %w", k, err)
 		}
-		a, ok, err := getAthlete(bs[1], binary.BigEndian.Uint64(v))
+		a, ok, err := getAthlete(bs[1], id)
 		if err == nil && !ok {
 			err = fmt.Errorf("name index entry %q points to a missing profile", k)
 		}
@@ -201,7 +190,11 @@ func (t *Tx) putAthlete(a *record.Athlete) error {
 	}
 	athletes, names := bs[0], bs[1]
 	if holder := names.Get([]byte(key)); holder != nil {
-		if a.ID == 0 || len(holder) != idLen || binary.BigEndian.Uint64(holder) != a.ID {
+		hid, err := decodeID([]byte(key), holder)
+		if err != nil {
+			return fmt.Errorf("name index: %w", err)
+		}
+		if a.ID == 0 || hid != a.ID {
 			return ErrNameTaken
 		}
 	}
@@ -240,7 +233,7 @@ func (t *Tx) putAthlete(a *record.Athlete) error {
 	if err := putJSON(athletes, idKey(id), rec); err != nil {
 		return err
 	}
-	if err := names.Put([]byte(key), idKey(id)); err != nil {
+	if err := putValue(names, []byte(key), idKey(id)); err != nil {
 		return fmt.Errorf("index name: %w", err)
 	}
 	a.ID = id
@@ -274,9 +267,15 @@ func (t *Tx) deleteAthlete(id uint64) (int, error) {
 	}
 	if ok {
 		key := []byte(foldName(a.Name))
-		if v := names.Get(key); len(v) == idLen && binary.BigEndian.Uint64(v) == id {
-			if err := names.Delete(key); err != nil {
-				return 0, fmt.Errorf("drop name: %w", err)
+		if v := names.Get(key); v != nil {
+			held, err := decodeID(key, v)
+			if err != nil {
+				return 0, fmt.Errorf("name index: %w", err)
+			}
+			if held == id {
+				if err := names.Delete(key); err != nil {
+					return 0, fmt.Errorf("drop name: %w", err)
+				}
 			}
 		}
 		if err := athletes.Delete(idKey(id)); err != nil {
@@ -302,7 +301,7 @@ func (t *Tx) deleteAthlete(id uint64) (int, error) {
 	doomed = doomed[:0]
 	err = lines.ForEach(func(k, v []byte) error {
 		var l record.Line
-		if err := json.Unmarshal(v, &l); err != nil {
+		if err := decodeJSON(k, v, &l); err != nil {
 			return fmt.Errorf("decode line %q: %w", k, err)
 		}
 		if l.AthleteID == id {
@@ -323,7 +322,7 @@ func (t *Tx) deleteAthlete(id uint64) (int, error) {
 	var linked []record.User
 	err = users.ForEach(func(k, v []byte) error {
 		var u record.User
-		if err := json.Unmarshal(v, &u); err != nil {
+		if err := decodeJSON(k, v, &u); err != nil {
 			return fmt.Errorf("decode user %q: %w", k, err)
 		}
 		if u.AthleteID == id {
@@ -417,10 +416,19 @@ func (t *Tx) Attempts(athleteID uint64, from, to time.Time, fn func(record.Attem
 	for k, v := c.Seek(start); k != nil; k, v = c.Next() {
 		t.scanSteps++
 		if bytes.Compare(k, end) >= 0 {
+			// The first key past the window may be one of ours whose key
+			// was damaged: it must be sound for the window to be whole.
+			if err := soundAt(k, v); err != nil {
+				return fmt.Errorf("store: attempts of athlete %d: %w", athleteID, err)
+			}
 			break
 		}
+		if bytes.Compare(k, start) < 0 {
+			// Only a damaged page tree walks backwards.
+			return fmt.Errorf("store: attempts of athlete %d: key %x out of order: %w", athleteID, k, ErrDamaged)
+		}
 		var a record.Attempt
-		if err := json.Unmarshal(v, &a); err != nil {
+		if err := decodeJSON(k, v, &a); err != nil {
 			return fmt.Errorf("store: attempts of athlete %d: decode %x: %w", athleteID, k, err)
 		}
 		if err := fn(a); err != nil {
@@ -458,15 +466,19 @@ func findLine(b *bolt.Bucket, l record.Line, n uint64) (found []byte, used []uin
 	prefix := lineKey(l.LoggedBy, n, 0)
 	prefix = prefix[:len(prefix)-seqLen]
 	c := b.Cursor()
-	for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
+	k, v := c.Seek(prefix)
+	for ; k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
 		var have record.Line
-		if err := json.Unmarshal(v, &have); err != nil {
+		if err := decodeJSON(k, v, &have); err != nil {
 			return nil, nil, fmt.Errorf("decode line %q: %w", k, err)
 		}
 		if found == nil && have.ID == l.ID {
 			found = bytes.Clone(k)
 		}
 		used = append(used, binary.BigEndian.Uint32(k[len(prefix):]))
+	}
+	if err := soundAt(k, v); err != nil {
+		return nil, nil, err
 	}
 	return found, used, nil
 }
@@ -544,10 +556,13 @@ func (t *Tx) LastLine(loggedBy string) (record.Line, bool, error) {
 		k, v = c.Prev()
 	}
 	if k == nil || !bytes.HasPrefix(k, prefix) {
+		if err := soundAt(k, v); err != nil {
+			return record.Line{}, false, fmt.Errorf("store: last line of %q: %w", loggedBy, err)
+		}
 		return record.Line{}, false, nil
 	}
 	var l record.Line
-	if err := json.Unmarshal(v, &l); err != nil {
+	if err := decodeJSON(k, v, &l); err != nil {
 		return record.Line{}, false, fmt.Errorf("store: last line of %q: decode: %w", loggedBy, err)
 	}
 	return l, true, nil
@@ -589,7 +604,7 @@ func (t *Tx) LineByNumber(n uint64) (record.Line, bool, error) {
 	c := b.Cursor()
 	for k, v := c.Last(); k != nil; k, v = c.Prev() {
 		var l record.Line
-		if err := json.Unmarshal(v, &l); err != nil {
+		if err := decodeJSON(k, v, &l); err != nil {
 			return record.Line{}, false, fmt.Errorf("store: line #%d: decode %q: %w", n, k, err)
 		}
 		if l.Number == n {
@@ -632,15 +647,12 @@ func (t *Tx) User(id string) (record.User, bool, error) {
 	if id == "" {
 		return record.User{}, false, nil
 	}
-	v := b.Get([]byte(id))
-	if v == nil {
-		return record.User{}, false, nil
-	}
 	var u record.User
-	if err := json.Unmarshal(v, &u); err != nil {
-		return record.User{}, false, fmt.Errorf("store: user %q: decode: %w", id, err)
+	ok, err := getJSON(b, []byte(id), &u)
+	if err != nil {
+		return record.User{}, false, fmt.Errorf("store: user %q: %w", id, err)
 	}
-	return u, true, nil
+	return u, ok, nil
 }
 
 // PutUser inserts or replaces a chat user. A non-zero AthleteID must name an
@@ -689,7 +701,7 @@ func (t *Tx) Users() ([]record.User, error) {
 	var out []record.User
 	err = b.ForEach(func(k, v []byte) error {
 		var u record.User
-		if err := json.Unmarshal(v, &u); err != nil {
+		if err := decodeJSON(k, v, &u); err != nil {
 			return fmt.Errorf("decode user %q: %w", k, err)
 		}
 		out = append(out, u)
@@ -699,32 +711,6 @@ func (t *Tx) Users() ([]record.User, error) {
 		return nil, fmt.Errorf("store: users: %w", err)
 	}
 	return out, nil
-}
-
-// putTime stores a time as 8 big-endian bytes of UnixNano.
-func putTime(b *bolt.Bucket, key string, at time.Time) error {
-	if key == "" {
-		return errors.New("empty key")
-	}
-	n, err := nanos(at)
-	if err != nil {
-		return err
-	}
-	return b.Put([]byte(key), binary.BigEndian.AppendUint64(nil, n))
-}
-
-func getTime(b *bolt.Bucket, key string) (time.Time, bool, error) {
-	if key == "" {
-		return time.Time{}, false, nil
-	}
-	v := b.Get([]byte(key))
-	if v == nil {
-		return time.Time{}, false, nil
-	}
-	if len(v) != nanosLen {
-		return time.Time{}, false, fmt.Errorf("time value is %d bytes, want %d", len(v), nanosLen)
-	}
-	return fromNanos(binary.BigEndian.Uint64(v)), true, nil
 }
 
 // Seen reports whether a message or event id was already handled.
@@ -763,10 +749,11 @@ func (t *Tx) PruneSeen(before time.Time) (int, error) {
 	limit := clampNanos(before)
 	var doomed [][]byte
 	err = b.ForEach(func(k, v []byte) error {
-		if len(v) != nanosLen {
-			return fmt.Errorf("seen %q: time value is %d bytes, want %d", k, len(v), nanosLen)
+		at, err := decodeTime(k, v)
+		if err != nil {
+			return fmt.Errorf("seen %q: %w", k, err)
 		}
-		if binary.BigEndian.Uint64(v) < limit {
+		if uint64(at.UnixNano()) < limit {
 			doomed = append(doomed, bytes.Clone(k))
 		}
 		return nil
@@ -820,10 +807,14 @@ func (t *Tx) AuditEntries(since time.Time, fn func(record.AuditEntry) error) err
 		return fmt.Errorf("store: audit entries: %w", err)
 	}
 	c := b.Cursor()
-	for k, v := c.Seek(binary.BigEndian.AppendUint64(nil, clampNanos(since))); k != nil; k, v = c.Next() {
+	from := binary.BigEndian.AppendUint64(nil, clampNanos(since))
+	for k, v := c.Seek(from); k != nil; k, v = c.Next() {
 		t.scanSteps++
+		if bytes.Compare(k, from) < 0 {
+			return fmt.Errorf("store: audit entries: key %x out of order: %w", k, ErrDamaged)
+		}
 		var e record.AuditEntry
-		if err := json.Unmarshal(v, &e); err != nil {
+		if err := decodeJSON(k, v, &e); err != nil {
 			return fmt.Errorf("store: audit entries: decode %x: %w", k, err)
 		}
 		if err := fn(e); err != nil {

@@ -222,16 +222,3 @@ func runRestore(cfg config, io stdio) error {
 	fmt.Fprintf(io.Out, "restored %s from %s; the previous file is kept as %s.before-restore\n", cfg.DataPath, cfg.SubArgs[0], cfg.DataPath)
 	return nil
 }
-
-// runCheck verifies the data file.
-func runCheck(cfg config, io stdio) error {
-	path := cfg.DataPath
-	if len(cfg.SubArgs) == 1 {
-		path = cfg.SubArgs[0]
-	}
-	if err := store.Check(path); err != nil {
-		return err
-	}
-	fmt.Fprintf(io.Out, "%s: consistency check passed\n", path)
-	return nil
-}

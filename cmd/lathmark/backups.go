@@ -69,9 +69,73 @@ func nightlyBackup(ctx context.Context, db *store.DB, teams teamReader, now time
 	if err := store.Check(path); err != nil {
 		return fmt.Errorf("nightly backup %s fails its check: %w", path, err)
 	}
+	if err := rememberBackupDir(db.Path(), team.BackupDir); err != nil {
+		log.Warn("could not note the backup folder beside the data file; a damaged file will not name its newest backup", "err", err)
+	}
 	removed, err := pruneBackups(team.BackupDir, team.BackupsKept())
 	log.Info("nightly backup written", "path", path, "bytes", n, "pruned", removed)
 	return err
+}
+
+// backupDirSuffix names the small file beside the data file that holds the
+// backup folder's path: the folder is a team setting inside the data file,
+// which cannot be read once the file is damaged.
+const backupDirSuffix = ".backup-dir"
+
+// rememberBackupDir notes dir beside the data file (mode 0600), unless it
+// is already noted.
+func rememberBackupDir(dataPath, dir string) error {
+	note := dataPath + backupDirSuffix
+	if old, err := os.ReadFile(note); err == nil && string(old) == dir {
+		return nil
+	}
+	tmp := note + ".tmp"
+	if err := os.WriteFile(tmp, []byte(dir), 0o600); err != nil {
+		return err
+	}
+	return os.Rename(tmp, note)
+}
+
+// newestBackup finds the most recently written backup of the data file: a
+// nightly backup in the noted backup folder or beside the data file, or the
+// file kept by the last restore. ok is false when there is none.
+func newestBackup(dataPath string) (path string, at time.Time, ok bool) {
+	dirs := []string{filepath.Dir(dataPath)}
+	if dir, err := os.ReadFile(dataPath + backupDirSuffix); err == nil && len(dir) > 0 {
+		dirs = append(dirs, string(dir))
+	}
+	var candidates []string
+	for _, dir := range dirs {
+		entries, err := os.ReadDir(dir)
+		if err != nil {
+			continue
+		}
+		for _, e := range entries {
+			if n := e.Name(); e.Type().IsRegular() && strings.HasPrefix(n, backupPrefix) && strings.HasSuffix(n, backupSuffix) {
+				candidates = append(candidates, filepath.Join(dir, n))
+			}
+		}
+	}
+	candidates = append(candidates, dataPath+store.BeforeRestoreSuffix)
+	for _, c := range candidates {
+		fi, err := os.Stat(c)
+		if err != nil || !fi.Mode().IsRegular() || c == dataPath {
+			continue
+		}
+		if !ok || fi.ModTime().After(at) {
+			path, at, ok = c, fi.ModTime(), true
+		}
+	}
+	return path, at, ok
+}
+
+// damageAdvice tells the operator of a damaged data file what to restore.
+func damageAdvice(dataPath string) string {
+	p, at, ok := newestBackup(dataPath)
+	if !ok {
+		return fmt.Sprintf("No backup of %s was found (none beside it, none noted from `team backup DIR`): copy the damaged file aside before anything else.", dataPath)
+	}
+	return fmt.Sprintf("The newest backup is %s (written %s). Stop the bot, then put it back with:\n  lathmark restore --data %s %s", p, at.UTC().Format("2006-01-02 15:04 UTC"), dataPath, p)
 }
 
 // pruneBackups removes the oldest nightly backups in dir beyond keep. Names

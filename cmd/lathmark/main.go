@@ -10,11 +10,14 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"os"
 	"os/signal"
 	"syscall"
 	_ "time/tzdata" // time zones on machines without a zone database
+
+	"github.com/lathmark-team/lathmark/store"
 )
 
 func main() {
@@ -41,12 +44,16 @@ func run(ctx context.Context, args []string, io stdio, getenv func(string) strin
 	case "restore":
 		err = runRestore(cfg, io)
 	case "check":
-		err = runCheck(cfg, io)
+		err = checkData(cfg, io)
 	default:
 		err = runBot(ctx, cfg, io)
 	}
 	if err != nil {
 		fmt.Fprintln(io.Err, "lathmark:", err)
+		if errors.Is(err, store.ErrDamaged) && cfg.Sub == "" && !cfg.Demo {
+			// The file was refused at open or a read met damage.
+			fmt.Fprintln(io.Err, damageAdvice(cfg.DataPath))
+		}
 		return 1
 	}
 	return 0
