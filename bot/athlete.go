@@ -41,6 +41,7 @@ var profileSpecs = []optionSpec{
 	{Key: "private", Kind: kindWord},
 	{Key: "consent", Aliases: []string{"guardian"}, Kind: kindWord},
 	{Key: "notes", Aliases: []string{"note"}, Kind: kindRest},
+	{Key: "confirm", Kind: kindFlag},
 }
 
 func athleteCommands() []command {
@@ -118,7 +119,7 @@ func runAthleteAdd(c *call) (Reply, error) {
 		return Reply{}, err
 	}
 	a := record.Athlete{Name: name, Created: c.now}
-	if err := applyProfile(&a, o, c.now.Year(), exampleAdd); err != nil {
+	if err := applyProfile(&a, o, c.now.Year(), exampleAdd, "athlete add "+joinRaw(c.args)); err != nil {
 		return Reply{}, err
 	}
 	if a.StatureM == 0 {
@@ -156,8 +157,9 @@ const minorCaution = "This athlete is under 18. Record their data only with a pa
 func isMinor(a record.Athlete, year int) bool { return a.BirthYear != 0 && year-a.BirthYear < 18 }
 
 // applyProfile copies parsed fields into a profile, checking each against its
-// plausibility range.
-func applyProfile(a *record.Athlete, o options, year int, example string) error {
+// plausibility range; typed is the whole line as typed, for the confirm a
+// personal best above the world record asks for.
+func applyProfile(a *record.Athlete, o options, year int, example, typed string) error {
 	if v, ok := o.num("height"); ok {
 		if v < minStatureM || v > maxStatureM {
 			return usageErr(example, "height %s is outside %.2f–%.2f m; give metres (1.78), centimetres (178cm) or feet-inches (5-10)", fmtM(v), minStatureM, maxStatureM)
@@ -195,6 +197,9 @@ func applyProfile(a *record.Athlete, o options, year int, example string) error 
 	if v, ok := o.num("pb"); ok {
 		if v < minPBM || v > maxPBM {
 			return usageErr(example, "pb %s is outside %.2f–%.2f m", fmtM(v), minPBM, maxPBM)
+		}
+		if wr := worldRecordM(a.Sex); higherBar(v, wr) && !o.has("confirm") {
+			return conflictErr(typed+" confirm", "pb %s is above the world record %s (from memory); check the number; nothing was saved (if it is right, add confirm).", fmtM(v), fmtM(wr))
 		}
 		a.PersonalBestM = v
 	}
@@ -400,7 +405,7 @@ func runAthleteSet(c *call) (Reply, error) {
 			return err
 		}
 		after = before
-		if err := applyProfile(&after, o, c.now.Year(), ex); err != nil {
+		if err := applyProfile(&after, o, c.now.Year(), ex, "athlete set "+joinRaw(c.args)); err != nil {
 			return err
 		}
 		if team, err = tx.Team(); err != nil {

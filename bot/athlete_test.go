@@ -55,6 +55,10 @@ func TestAthleteRefusals(t *testing.T) {
 		{"height-range", "athlete add Zed height 9", bot.KindUsage, "outside 1.20–2.30 m"},
 		{"mass-range", "athlete add Zed height 1.80 mass 300", bot.KindUsage, "outside 30–150 kg"},
 		{"pb-range", "athlete add Zed height 1.80 pb 3.1", bot.KindUsage, "outside 0.50–2.60 m"},
+		// World records from memory: men 2.45 m (1993), women 2.10 m (2024).
+		{"pb-above-men-record", "athlete add Zed height 1.80 pb 2.50", bot.KindConflict, "above the world record 2.45 m"},
+		{"pb-above-women-record", "athlete add Zoe height 1.80 sex f pb 2.11", bot.KindConflict, "above the world record 2.10 m"},
+		{"set-pb-above-record", "athlete set Kai pb 2.47", bot.KindConflict, "add confirm"},
 		{"no-height", "athlete add Zed mass 60", bot.KindUsage, "give the athlete's height"},
 		{"typo", "athlete Mria", bot.KindNotFound, "Did you mean Mira?"},
 		{"bad-sex", "athlete add Zed height 1.80 sex q", bot.KindUsage, `sex "q"`},
@@ -254,6 +258,19 @@ func TestTeamZoneAndAltitudeAsTyped(t *testing.T) {
 	for _, bad := range []string{"team location lat 40.4 alt high", "team location lat 40.4 alt 20000ft"} {
 		if r := te.run(bad); r.Kind != bot.KindUsage || r.Example == "" {
 			t.Errorf("%q: %s", bad, plain(r))
+		}
+	}
+}
+
+// A personal best above the world record (from memory: men 2.45 m, women
+// 2.10 m) is stored only with confirm; one at the record is not questioned.
+func TestAthletePBWorldRecordConfirm(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Una height 1.70 sex f pb 2.10")
+	te.must("athlete add Zed height 1.80 pb 2.50 confirm")
+	for name, want := range map[string]float64{"Una": 2.10, "Zed": 2.50} {
+		if a, ok := te.athleteByName(name); !ok || a.PersonalBestM != want {
+			t.Errorf("%s stored %+v, %v; want pb %.2f", name, a, ok, want)
 		}
 	}
 }

@@ -364,8 +364,9 @@ func marginFlightAngle(vz float64, ac *mechanics.AcrossSpeed, m marginArgs, sex 
 }
 
 // worldRecordFlag flags a height above the world record of the athlete's
-// sex (2.45 m men, 2.09 m women, from memory; 2.45 m when the sex is not
-// known), from the range table's "height cleared" rows.
+// sex (mechanics.WorldRecordM: 2.45 m men, 2.10 m women, from memory; the
+// men's when the sex is not known), from the range table's "height
+// cleared" rows.
 func worldRecordFlag(heightM float64, sex mechanics.Sex, what string) (rangeNote, bool) {
 	r, ok := mechanics.RangeFor(mechanics.QClearHeight, sex, mechanics.Elite)
 	if !ok || heightM <= r.Hi {

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"strings"
 
+	"github.com/lathmark-team/lathmark/internal/mechanics"
 	"github.com/lathmark-team/lathmark/internal/record"
 	"github.com/lathmark-team/lathmark/internal/series"
 	"github.com/lathmark-team/lathmark/internal/units"
@@ -19,19 +20,15 @@ const (
 	// logAbovePBM is how far above the athlete's personal best a bar may
 	// be before the line asks for confirm (a typo such as 2.40 for 1.40).
 	logAbovePBM = 0.15
-	// World records of the high jump, outdoor, metres (from memory: men
-	// 2.45 m since 1993, women 2.10 m since 2024; 2.09 m before that).
-	worldRecordMenM   = 2.45
-	worldRecordWomenM = 2.10
 )
 
 // worldRecordM is the world record for the athlete's sex (the men's when the
 // profile does not say).
 func worldRecordM(s record.Sex) float64 {
 	if s == record.SexFemale {
-		return worldRecordWomenM
+		return mechanics.WorldRecordM(mechanics.Female)
 	}
-	return worldRecordMenM
+	return mechanics.WorldRecordM(mechanics.Male)
 }
 
 // meetStateOf follows the day's stored meet attempts (time order) through

@@ -102,9 +102,9 @@ func rangeTable() []PublishedRange {
 		{QJumpTestTime, SexUnknown, Elite, 0.55, 0.80, "s", "countermovement jumps of 0.37-0.78 m by t = √(8h/g), Bosco et al. 1983 (heights from memory)"},
 		{QJumpTestTime, SexUnknown, Developing, 0.35, 0.80, "s", "jumps of 0.15-0.78 m (common practice)"},
 		{QArch, SexUnknown, Elite, 60, 120, "°", "whole-body bend of a layout over the bar (common practice)"},
-		{QClearHeight, Male, Elite, 1.90, 2.45, "m", "men's world record 2.45 m (from memory)"},
-		{QClearHeight, Female, Elite, 1.70, 2.09, "m", "women's world record 2.09 m (from memory)"},
-		{QClearHeight, SexUnknown, Developing, 1.00, 2.45, "m", "up to the men's world record 2.45 m (from memory)"},
+		{QClearHeight, Male, Elite, 1.90, WorldRecordMenM, "m", "men's world record 2.45 m (from memory)"},
+		{QClearHeight, Female, Elite, 1.70, WorldRecordWomenM, "m", "women's world record 2.10 m since 2024 (from memory)"},
+		{QClearHeight, SexUnknown, Developing, 1.00, WorldRecordMenM, "m", "up to the men's world record 2.45 m (from memory)"},
 	}
 }
 
