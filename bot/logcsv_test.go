@@ -311,3 +311,36 @@ func stripLineNos(s string) string {
 	s = regexp.MustCompile(`; `).ReplaceAllString(s, ", ")
 	return regexp.MustCompile(` +`).ReplaceAllString(s, " ")
 }
+
+// An import is one change but may hold more than one session: undoing one
+// that spans two athletes (four attempts, well under the 20-attempt limit)
+// asks for confirm and removes nothing until then (issue 15: more than one
+// line needs confirm).
+func TestUndoImportOfTwoSessionsAsksConfirm(t *testing.T) {
+	te := newTestEngine(t)
+	logAddAthlete(t, te.DB, logMira())
+	te.must("athlete add Kai height 1.86")
+	csv := "athlete,time,bar_m,outcome,meet,message_id\n" +
+		"Mira,2026-01-05T17:00:00Z,1.60,o,false,a\n" +
+		"Mira,2026-01-05T17:01:00Z,1.65,o,false,a\n" +
+		"Kai,2026-01-05T17:02:00Z,1.80,o,false,b\n" +
+		"Kai,2026-01-05T17:03:00Z,1.85,x,false,b\n"
+	path := filepath.Join(t.TempDir(), "two.csv")
+	if err := os.WriteFile(path, []byte(csv), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	if r := te.E.ImportCSVFile(context.Background(), bot.Request{UserID: "U_HEAD", Time: te.now, MessageID: "import-2s"}, path, nil); !r.OK() {
+		t.Fatal(plain(r))
+	}
+	te.advance(time.Minute)
+	if r := te.run("undo"); r.Kind != bot.KindConflict || !strings.Contains(plain(r), "undo confirm") {
+		t.Fatalf("undo of an import of two sessions without confirm: %s", plain(r))
+	}
+	if n := len(logAttempts(t, te.DB, "Mira")) + len(logAttempts(t, te.DB, "Kai")); n != 4 {
+		t.Fatalf("%d attempts after a refused undo, want 4", n)
+	}
+	te.must("undo confirm")
+	if n := len(logAttempts(t, te.DB, "Mira")) + len(logAttempts(t, te.DB, "Kai")); n != 0 {
+		t.Errorf("%d attempts after undo confirm, want 0", n)
+	}
+}

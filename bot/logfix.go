@@ -372,7 +372,7 @@ func (c *call) fixInTx(tx Tx, n uint64, rest []token) (Reply, error) {
 
 // undoLineChange takes back a log, import, fix or drop.
 func (c *call) undoLineChange(tx Tx, e record.AuditEntry, when string, confirm bool) (Reply, error) {
-	team, _, err := teamAndZone(tx)
+	team, loc, err := teamAndZone(tx)
 	if err != nil {
 		return Reply{}, err
 	}
@@ -411,7 +411,7 @@ func (c *call) undoLineChange(tx Tx, e record.AuditEntry, when string, confirm b
 		}
 	}
 	removing := len(curAtts)
-	if saved == nil && removing > undoMaxAttempts && !confirm {
+	if saved == nil && (removing > undoMaxAttempts || sessionCount(curAtts, loc) > 1) && !confirm {
 		return Reply{}, conflictErr("undo confirm", "undo would remove %s (%s, %s); if that is what you want, send undo confirm", jumpPassText(curAtts), lineDesc(cur, curAtts, imp), when)
 	}
 	var lines []string
@@ -543,4 +543,19 @@ func (c *call) settlePB(tx Tx, ath *record.Athlete, since time.Time, imp bool) (
 		return "Personal best back to " + barText(ath.PersonalBestM, imp) + ".", nil
 	}
 	return "The personal best this line set is cleared from the profile.", nil
+}
+
+// sessionCount is how many sessions (one athlete on one day in the team's
+// zone) the attempts span: an import that spans more than one is more than
+// one line, and undoing it asks for confirm.
+func sessionCount(atts []record.Attempt, loc *time.Location) int {
+	type session struct {
+		athleteID uint64
+		day       string
+	}
+	seen := map[session]bool{}
+	for _, a := range atts {
+		seen[session{a.AthleteID, a.Time.In(loc).Format("2006-01-02")}] = true
+	}
+	return len(seen)
 }
