@@ -171,7 +171,13 @@ func TestMeetSquadThroughLogAndClose(t *testing.T) {
 		t.Errorf("standings after close: %s", plain(r))
 	}
 	contains(t, te.must("history Ren"), "meet", "1.65 o, 1.70 o, 1.75 xo, 1.80 xxo, 1.83 xxx")
-	contains(t, te.must("history Mira"), "#1 1.60 o, 1.65 xo; 1.70 xxx") // the logged line #1, then the sheet's entry filed by meet close
+	// The logged line #1, then the sheet's entry filed by meet close as a
+	// numbered line of its own, which drop then reaches.
+	contains(t, te.must("history Mira"), "#1 1.60 o, 1.65 xo; #5 1.70 xxx")
+	contains(t, te.must("drop #5"), "1.70 xxx")
+	if h := plain(te.must("history Mira")); strings.Contains(h, "#5") {
+		t.Errorf("line #5 still in history after drop:\n%s", h)
+	}
 	contains(t, te.must("best Ren"), "1.80 m (meet")
 	// o, o, xo, xxo, xxx: 10 take-offs (o and x, TR notation) in the week's digest.
 	contains(t, te.must("digest now"), "Take-offs Ren: 10 (10 full, 0 short approach)")

@@ -33,10 +33,8 @@ func runMeetClose(c *call) (Reply, error) {
 			return err
 		}
 		filed := s.Filed(loc)
-		if len(filed) > 0 {
-			if err := tx.AddAttempts(filed); err != nil {
-				return err
-			}
+		if err := c.fileLines(tx, s, filed); err != nil {
+			return err
 		}
 		pbs, err := c.meetBests(tx, s, imp, hide)
 		if err != nil {
@@ -151,6 +149,45 @@ func forgetRemoved(tx Tx, s *meetsheet.Sheet) error {
 			n++
 			s.Rename(comp.Name, fmt.Sprintf("removed-%d", n))
 			s.Competitors[i].AthleteID = 0
+		}
+	}
+	return nil
+}
+
+// fileLines stores the squad's results of a closed sheet as one numbered
+// line an athlete (so that history shows #N, and fix and drop reach them),
+// in the order the sheet first names each athlete.
+func (c *call) fileLines(tx Tx, s meetsheet.Sheet, filed []record.Attempt) error {
+	if len(filed) == 0 {
+		return nil
+	}
+	numbers := map[uint64]uint64{}
+	var order []uint64
+	for i := range filed {
+		id := filed[i].AthleteID
+		if _, ok := numbers[id]; !ok {
+			no, err := tx.NextLineNumber()
+			if err != nil {
+				return err
+			}
+			numbers[id] = no
+			order = append(order, id)
+		}
+		filed[i].LineNo = numbers[id]
+	}
+	if err := tx.AddAttempts(filed); err != nil {
+		return err
+	}
+	for _, id := range order {
+		line := record.Line{ID: fmt.Sprintf("meet-%s-%d", s.ID, id), LoggedBy: c.lineOwner(), Time: c.now, AthleteID: id,
+			Text: "meet close (" + s.Name + ")", Number: numbers[id]}
+		for _, a := range filed {
+			if a.AthleteID == id {
+				line.Attempts = append(line.Attempts, a.Key())
+			}
+		}
+		if err := tx.PutLine(line); err != nil {
+			return err
 		}
 	}
 	return nil
