@@ -23,17 +23,11 @@ func escapeText(s string) string {
 	}
 	var b strings.Builder
 	for i, r := range s {
-		switch r {
-		case '&':
-			b.WriteString("&amp;")
-		case '<':
-			b.WriteString("&lt;")
-		case '>':
-			if i == 0 {
-				b.WriteString(zwsp)
-			}
-			b.WriteString("&gt;")
-		case '`', '*', '_', '~':
+		switch {
+		case r == '>' && i == 0:
+			b.WriteString(zwsp + "&gt;")
+		case writeEntity(&b, r):
+		case strings.ContainsRune("`*_~", r):
 			b.WriteString(zwsp)
 			b.WriteRune(r)
 			b.WriteString(zwsp)
@@ -52,4 +46,20 @@ func breakFences(s string) string {
 		return s
 	}
 	return strings.ReplaceAll(s, "`", "`"+zwsp)
+}
+
+// writeEntity writes &, < or > as its entity (Slack's message formatting
+// rules) and reports whether r was one of them.
+func writeEntity(b *strings.Builder, r rune) bool {
+	switch r {
+	case '&':
+		b.WriteString("&amp;")
+	case '<':
+		b.WriteString("&lt;")
+	case '>':
+		b.WriteString("&gt;")
+	default:
+		return false
+	}
+	return true
 }

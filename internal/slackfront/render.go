@@ -368,14 +368,7 @@ func escape(s string) string {
 	}
 	var b strings.Builder
 	for _, r := range s {
-		switch r {
-		case '&':
-			b.WriteString("&amp;")
-		case '<':
-			b.WriteString("&lt;")
-		case '>':
-			b.WriteString("&gt;")
-		default:
+		if !writeEntity(&b, r) {
 			b.WriteRune(r)
 		}
 	}
