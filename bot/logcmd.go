@@ -109,6 +109,7 @@ func runLog(c *call) (Reply, error) {
 type loggedJump struct {
 	rec   record.Attempt
 	model jumpModel
+	flags []rangeNote // measured values outside their published ranges
 }
 
 func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
@@ -183,7 +184,7 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 		if m.ok {
 			add[i].HasModelMargin, add[i].ModelMarginM = true, m.marginM
 		}
-		jumps[i] = loggedJump{rec: add[i], model: m}
+		jumps[i] = loggedJump{rec: add[i], model: m, flags: attemptFlags(add[i], ath, team)}
 	}
 
 	var notes []string
@@ -350,6 +351,9 @@ func logReply(ath record.Athlete, ln logLine, no uint64, jumps []loggedJump, tod
 				r.Assumptions = append(r.Assumptions, s)
 			}
 		}
+	}
+	if l := logCheckLine(jumps, imp); l != "" {
+		r.Lines = append(r.Lines, l)
 	}
 	if len(measured) > 0 {
 		r.Lines = append(r.Lines, measuresHintPrefix+": "+strings.Join(measured, "; ")+".")
