@@ -92,6 +92,12 @@ func TestLogRangeFlagsOneLine(t *testing.T) {
 	te := newTestEngine(t)
 	logAddAthlete(t, te.DB, logKai())
 	r := te.must("log Kai 1.90 o approach 9.5 takeoff 2.0 vz 5.5")
+	golden(t, "log-flags", plain(r))
+	if r.Details == nil {
+		t.Fatal("a flagged line has no details")
+	}
+	golden(t, "log-flags-more", plain(*r.Details))
+	contains(t, *r.Details, "vz 5.50 m/s is far above the 4.3–4.7 m/s measured in elite men: check the number")
 	got := replyCheck(t, r.Lines)
 	for _, w := range []string{"vz 5.50 m/s far above 4.3–4.7 m/s", "approach speed 9.50 m/s", "take-off distance 2.00 m"} {
 		if !strings.Contains(got, w) {
