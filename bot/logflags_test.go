@@ -119,3 +119,22 @@ func TestLogRangeFlagsOneLine(t *testing.T) {
 		t.Errorf("vz 5.0 for a woman: Check line %q", l)
 	}
 }
+
+// TestFixRangeFlags: a fix that types a measured value outside its range
+// gets the same Check line as log (vz 4.3–4.7 m/s in elite men, Dapena's
+// reports, from memory), and stores the value.
+func TestFixRangeFlags(t *testing.T) {
+	te := newTestEngine(t)
+	logAddAthlete(t, te.DB, logKai())
+	te.must("log Kai 1.90 o")
+	r := te.must("fix #1 1.90 o vz 5.5")
+	if l := replyCheck(t, r.Lines); !strings.Contains(l, "vz 5.50 m/s far above 4.3–4.7 m/s") {
+		t.Errorf("fix: Check line %q", l)
+	}
+	if a := logAttempts(t, te.DB, "Kai"); len(a) != 1 || a[0].VzMS != 5.5 {
+		t.Errorf("stored %+v", a)
+	}
+	if l := replyCheck(t, te.must("fix #1 1.90 o vz 4.5").Lines); l != "" {
+		t.Errorf("fix with vz inside the range flagged: %q", l)
+	}
+}
