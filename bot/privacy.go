@@ -217,7 +217,7 @@ func (c *call) ownAthlete(tx Tx, name string) (record.Athlete, error) {
 func (c *call) notYoursErr(name string, own record.Athlete) error {
 	if own.Name != "" {
 		if s, ok := nearest(name, []string{own.Name}); ok {
-			return forbiddenErr(replaceWord(c.req.Text, name, s), "%q: another athlete's jumps and profile are for coaches; you see your own. Did you mean %s?", name, s)
+			return forbiddenErr(replaceWord(c.req.Text, name, s), "%q: another athlete's jumps and profile need the role coach; you see your own. Did you mean %s?", name, s)
 		}
 	}
 	return forbiddenErr("history me", "%q: logging for or reading another athlete needs the role coach; you are %s, with your own athlete only (`history me`). A head coach grants roles; a coach links you with `athlete link NAME @you`.",
