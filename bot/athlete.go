@@ -360,10 +360,7 @@ func runAthleteShow(c *call) (Reply, error) {
 	)
 	err := c.view(func(tx Tx) error {
 		var err error
-		if a, err = c.findAthlete(tx, c.args[0].Raw); err != nil {
-			return err
-		}
-		if err := c.mayActFor(a); err != nil {
+		if a, err = c.athleteFor(tx, c.args[0].Raw); err != nil {
 			return err
 		}
 		if team, err = tx.Team(); err != nil {

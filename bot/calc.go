@@ -108,11 +108,8 @@ func (c *call) loadCalc(forName string, extra func(tx Tx, env *calcEnv) error) (
 			return err
 		}
 		if forName != "" {
-			a, err := c.findAthlete(tx, forName)
+			a, err := c.athleteFor(tx, forName)
 			if err != nil {
-				return err
-			}
-			if err := c.mayActFor(a); err != nil {
 				return err
 			}
 			env.athlete = &a

@@ -113,13 +113,20 @@ func (c *call) mayActFor(a record.Athlete) error {
 	if c.user.Role == record.RoleAthlete && c.user.AthleteID == a.ID && a.ID != 0 {
 		return nil
 	}
-	return forbiddenErr("history me", "only %s themself or a coach may do that; you are %s. A head coach can link you with `athlete link NAME @you`.",
-		a.Name, withArticle(roleName(c.user.Role)))
+	// The athlete is not named: reached by a line number (drop #5), the
+	// refusal must not tell an athlete whose line it is.
+	return forbiddenErr("history me", "only that athlete themself or a coach may do that; you are %s. A head coach can link you with `athlete link NAME @you`.",
+		withArticle(roleName(c.user.Role)))
 }
 
 // athleteFor finds the named athlete and checks that the speaker may log
 // for or read them (mayActFor): the opening of every per-athlete command.
+// Below coach only the speaker's own athlete resolves, and any other name
+// gets one refusal, existing or not (ownAthlete, bot/privacy.go).
 func (c *call) athleteFor(tx Tx, name string) (record.Athlete, error) {
+	if rank(c.user.Role) < rank(record.RoleCoach) {
+		return c.ownAthlete(tx, name)
+	}
 	ath, err := c.findAthlete(tx, name)
 	if err != nil {
 		return record.Athlete{}, err

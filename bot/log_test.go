@@ -609,10 +609,10 @@ func TestHistoryWordOrder(t *testing.T) {
 func TestLogModelAssumptionsInTeamUnits(t *testing.T) {
 	te := newTestEngine(t)
 	logAddAthlete(t, te.DB, logMira())
-	r := te.must("log Mira 1.70 o vz 4.0")
+	r := te.must("log Mira 1.70 o vz 4.0 more")
 	contains(t, r, "take-off c.m. height assumed 1.25 m = 0.70 × stature", "assumed 11.1 cm = half a typical trunk depth")
 	logSetTeam(t, te.DB, record.Team{Units: record.Imperial})
-	r = te.must("log Mira 5-7 o vz 4.0")
+	r = te.must("log Mira 5-7 o vz 4.0 more")
 	contains(t, r, "take-off c.m. height assumed 4-1 = 0.70 × stature", "stature 5-10", "in = half a typical trunk depth")
 	p := plain(r)
 	for _, metric := range []string{" m ", " m;", " m,", " cm"} {

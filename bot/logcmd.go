@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"hash/fnv"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -40,11 +41,14 @@ const (
 // logCommands log jumps and read them back.
 func logCommands() []command {
 	return append([]command{
-		{name: "log", topic: "log", access: selfOrCoach,
-			usage:   "log ATHLETE|me BAR ATTEMPTS... [meet] [by M] [approach V] [takeoff D] [peak P] [vz V] [yesterday|on DATE] [at HH:MM] [confirm] [note TEXT]",
+		{name: "log", topic: "log", access: selfOrCoach, details: true,
+			usage:   "log ATHLETE|me BAR ATTEMPTS... [meet] [by M] [approach V] [takeoff D] [peak P] [vz V] [yesterday|on DATE] [at HH:MM] [confirm] [note TEXT] [more]",
 			example: "log Kai 1.95 o 2.00 xo 2.04 xxx",
-			summary: "o cleared, x failed, - passed. Measurements go with the jump written just before them; meet, the day and time go with the line; a meet line must keep the rules (confirm stores it marked)",
+			summary: "o cleared, x failed, - passed. Measurements go with the jump written just before them; meet, the day and time go with the line; a meet line must keep the rules (confirm stores it marked); more at the end shows the model's details",
 			run:     runLog},
+		{name: "line", topic: "log", access: selfOrCoach, details: true,
+			usage: "line N [more]", example: "line 1",
+			summary: "show logged line #N again: model margin, range flags; more for every value and assumption", run: runLine},
 		{name: "undo", topic: "log", access: selfOrCoach, usage: "undo [confirm] | undo line N", example: "undo",
 			summary: "take back your own last change of any kind (24 hours); undo line N removes line #N", run: runUndo},
 		{name: "history", aliases: []string{"hist"}, topic: "log", access: selfOrCoach,
@@ -109,6 +113,7 @@ func runLog(c *call) (Reply, error) {
 type loggedJump struct {
 	rec   record.Attempt
 	model jumpModel
+	flags []rangeNote // measured values outside their published ranges
 }
 
 func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
@@ -183,7 +188,7 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 		if m.ok {
 			add[i].HasModelMargin, add[i].ModelMarginM = true, m.marginM
 		}
-		jumps[i] = loggedJump{rec: add[i], model: m}
+		jumps[i] = loggedJump{rec: add[i], model: m, flags: attemptFlags(add[i], ath, team)}
 	}
 
 	var notes []string
@@ -223,7 +228,7 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 	if err := c.audit(tx, auditLog, ath.Name, nil, logged); err != nil {
 		return Reply{}, err
 	}
-	r := logReply(ath, ln, no, jumps, today, sameKind, add, bestLines, notes, imp)
+	r, sh := logReply(ath, ln, no, jumps, today, sameKind, add, bestLines, notes, imp)
 	if w := whenText(ln.When, at, loc); w != "" {
 		r.Title += w
 	}
@@ -240,7 +245,7 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 			return Reply{}, err
 		}
 	}
-	return c.quietHint(tx, r, hintMeasures, measuresHintPrefix), nil
+	return c.shortLogReply(tx, r, sh, no), nil
 }
 
 // attempts builds the line's attempts at time at, for the athlete.
@@ -279,8 +284,9 @@ func meetNotes(s series.State, breach *series.Breach, name string) []string {
 	return nil
 }
 
-// logReply is what the coach sees after a log line.
-func logReply(ath record.Athlete, ln logLine, no uint64, jumps []loggedJump, today, sameKind, add []record.Attempt, bests, notes []string, imp bool) Reply {
+// logReply is the full read-out of a log line (what `more` and the Details
+// button show) and what its short default reply changes (logBrief).
+func logReply(ath record.Athlete, ln logLine, no uint64, jumps []loggedJump, today, sameKind, add []record.Attempt, bests, notes []string, imp bool) (Reply, logBrief) {
 	kind := "practice"
 	if ln.Meet {
 		kind = "meet"
@@ -305,6 +311,34 @@ func logReply(ath record.Athlete, ln logLine, no uint64, jumps []loggedJump, tod
 		summary += " The " + kind + " so far: " + runsText(heightRuns(append(append([]record.Attempt(nil), sameKind...), add...)), imp) + "."
 	}
 	r.Lines = append(r.Lines, summary)
+	sh := logBrief{fields: map[string]string{}}
+	measured := jumpDetails(&r, &sh, jumps, imp)
+	if l := logCheckLine(jumps, imp); l != "" {
+		sh.check = l
+		for _, j := range jumps {
+			sh.flagFull = append(sh.flagFull, fullFlags(j.flags)...)
+		}
+		r.Lines = append(r.Lines, sh.flagFull...)
+	}
+	if len(measured) > 0 {
+		r.Lines = append(r.Lines, measuresHintPrefix+": "+strings.Join(measured, "; ")+".")
+	}
+	if ln.Note != "" {
+		r.Fields = append(r.Fields, Field{Label: "Note", Value: ln.Note})
+	}
+	r.Lines = append(r.Lines, bests...)
+	r.Lines = append(r.Lines, notes...)
+	if len(r.Assumptions) > 0 {
+		r.Caution = "The model margin is an estimate from a simple body model; the bar and the coach's eye decide."
+	}
+	return r, sh
+}
+
+// jumpDetails adds a field per measured jump (every value typed, the model
+// margin, the lowest part), the model's notes and assumptions to r, and the
+// jumps' short values and assumed names to sh; it returns the measured
+// jumps' labels ("1.75 attempt 2").
+func jumpDetails(r *Reply, sh *logBrief, jumps []loggedJump, imp bool) []string {
 	var measured []string
 	seen := map[string]bool{}
 	for _, j := range jumps {
@@ -340,6 +374,9 @@ func logReply(ath record.Athlete, ln logLine, no uint64, jumps []loggedJump, tod
 			parts = append(parts, a.PredictedPart+" lowest "+units.Small(a.PredictedClearanceM, imp))
 		}
 		r.Fields = append(r.Fields, Field{Label: label, Value: strings.Join(parts, ", ")})
+		if v := shortJumpValue(j, imp); v != "" {
+			sh.fields[label] = v
+		}
 		if j.model.why != "" && !seen[j.model.why] {
 			seen[j.model.why] = true
 			r.Lines = append(r.Lines, strings.ToUpper(j.model.why[:1])+j.model.why[1:]+".")
@@ -350,19 +387,13 @@ func logReply(ath record.Athlete, ln logLine, no uint64, jumps []loggedJump, tod
 				r.Assumptions = append(r.Assumptions, s)
 			}
 		}
+		for _, s := range j.model.assumed {
+			if !slices.Contains(sh.assumed, s) {
+				sh.assumed = append(sh.assumed, s)
+			}
+		}
 	}
-	if len(measured) > 0 {
-		r.Lines = append(r.Lines, measuresHintPrefix+": "+strings.Join(measured, "; ")+".")
-	}
-	if ln.Note != "" {
-		r.Fields = append(r.Fields, Field{Label: "Note", Value: ln.Note})
-	}
-	r.Lines = append(r.Lines, bests...)
-	r.Lines = append(r.Lines, notes...)
-	if len(r.Assumptions) > 0 {
-		r.Caution = "The model margin is an estimate from a simple body model; the bar and the coach's eye decide."
-	}
-	return r
+	return measured
 }
 
 // marginSignNote flags a coach's margin whose sign disagrees with the

@@ -184,11 +184,8 @@ func runExportCSV(c *call) (Reply, error) {
 		}
 		var athletes []record.Athlete
 		if len(args) > 0 {
-			a, err := c.findAthlete(tx, joinRaw(args))
+			a, err := c.athleteFor(tx, joinRaw(args))
 			if err != nil {
-				return err
-			}
-			if err := c.mayActFor(a); err != nil {
 				return err
 			}
 			athletes = []record.Athlete{a}

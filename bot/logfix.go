@@ -359,6 +359,13 @@ func (c *call) fixInTx(tx Tx, n uint64, rest []token) (Reply, error) {
 	if breach != nil {
 		r.Lines = append(r.Lines, "Stored as breaking the rules: "+breachMark(breach)+"; it never counts for a best.")
 	}
+	flagged := make([]loggedJump, len(add))
+	for i, a := range add {
+		flagged[i] = loggedJump{rec: a, flags: attemptFlags(a, ath, team)}
+	}
+	if l := logCheckLine(flagged, imp); l != "" {
+		r.Lines = append(r.Lines, l) // range flags, as under a log line
+	}
 	s, err := c.settlePB(tx, &ath, l.Time, imp)
 	if err != nil {
 		return Reply{}, err

@@ -21,7 +21,8 @@ type jumpModel struct {
 	marginM     float64
 	sigmaM      float64
 	why         string   // when !ok and a measurement was given: the reason, for the reply
-	assumptions []string // defaults the model took
+	assumptions []string // defaults the model took, in full
+	assumed     []string // their short names for the phone reply: "arch 90°", "h0"
 }
 
 // modelMargin computes the mechanics library's clearance margin for a
@@ -53,6 +54,7 @@ func modelMargin(a record.Attempt, ath record.Athlete, team record.Team) jumpMod
 	// The defaults are taken here rather than inside mechanics.Margin, so
 	// that the reply can state them in the team's units.
 	notes := []string{fmt.Sprintf("model margin: arc model, body arch %d° over a body length of the stature %s, c.m. peak over the bar", logArchDeg, units.Length(ath.StatureM, imp))}
+	assumed := []string{fmt.Sprintf("arch %d°", logArchDeg)}
 	useVz := a.VzMS > 0
 	if a.PeakM > 0 && a.VzMS > 0 {
 		// The one rule for a jump measured both ways (mechanics.ComparePeakVz,
@@ -69,6 +71,7 @@ func modelMargin(a record.Attempt, ath record.Athlete, team record.Team) jumpMod
 		in.VzMS = a.VzMS
 		in.H0M = mechanics.TakeoffHeightFraction * ath.StatureM
 		notes = append(notes, fmt.Sprintf("take-off c.m. height assumed %s = %.2f × stature", units.Length(in.H0M, imp), mechanics.TakeoffHeightFraction))
+		assumed = append(assumed, "h0")
 	}
 	if in.DepthM == 0 {
 		d, err := mechanics.DefaultUndersideDepth(ath.StatureM)
@@ -77,6 +80,7 @@ func modelMargin(a record.Attempt, ath record.Athlete, team record.Team) jumpMod
 		}
 		in.DepthM = d
 		notes = append(notes, fmt.Sprintf("body depth (midline to underside) assumed %s = half a typical trunk depth (athlete set %s depth D sets it)", units.SmallAbs(d, imp), ath.Name))
+		assumed = append(assumed, "body depth")
 	} else {
 		notes = append(notes, fmt.Sprintf("body depth %s from %s's profile", units.SmallAbs(in.DepthM, imp), ath.Name))
 	}
@@ -89,6 +93,7 @@ func modelMargin(a record.Attempt, ath record.Athlete, team record.Team) jumpMod
 	}
 	if in.GMS2 == 0 {
 		notes = append(notes, fmt.Sprintf("standard gravity %.5f m/s² (no venue set)", mechanics.StandardGravity))
+		assumed = append(assumed, "standard gravity")
 	}
 	res, err := mechanics.Margin(in)
 	if err != nil {
@@ -98,7 +103,7 @@ func modelMargin(a record.Attempt, ath record.Athlete, team record.Team) jumpMod
 		}
 		return jumpModel{why: "no model margin: " + err.Error()}
 	}
-	return jumpModel{ok: true, marginM: res.MarginM, sigmaM: res.SigmaM, assumptions: notes}
+	return jumpModel{ok: true, marginM: res.MarginM, sigmaM: res.SigmaM, assumptions: notes, assumed: assumed}
 }
 
 // logGravity is the gravity the log's model uses: the team's venue, or 0

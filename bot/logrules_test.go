@@ -105,7 +105,7 @@ func TestPlausibilityNeedsConfirm(t *testing.T) {
 	// of 1.246 + 3.9²/(2 × 9.80665) = 2.0215 m (projectile rise).
 	te.must("athlete add Mia height 1.78 sex f pb 1.80")
 	contains(t, mustRefuse(t, te, "log Mia 1.72 xo peak 1.95 vz 3.9", bot.KindConflict), "Peak 1.95 m and vz 3.90 m/s disagree", "2.02 m")
-	a := te.must("log Mia 1.72 xo peak 2.01 vz 3.9")
+	a := te.must("log Mia 1.72 xo peak 2.01 vz 3.9 more")
 	contains(t, a, "so vz was used")
 	b := te.must("log Mia 1.72 xo vz 3.9")
 	as := logAttempts(t, te.DB, "Mia")
@@ -171,7 +171,7 @@ func TestPeakVzSameInLogAndMargin(t *testing.T) {
 		t.Fatalf("no margin in:\n%s", plain(r))
 		return ""
 	}
-	l := marginOf(te.must("log Mia 1.72 xo peak 2.01 vz 3.9"))
+	l := marginOf(te.must("log Mia 1.72 xo peak 2.01 vz 3.9 more"))
 	m1 := marginOf(te.must("margin 1.72 for Mia v 3.9 peak 2.01 arch 90 more"))
 	m2 := marginOf(te.must("margin 1.72 for Mia arch 90 more"))
 	if !strings.HasPrefix(l, "+") || l != m1 || l != m2 {

@@ -182,3 +182,44 @@ func (c *call) suggestable(all []record.Athlete) []string {
 	}
 	return names
 }
+
+// ownAthlete resolves a name typed by a speaker below coach (an athlete, or
+// a workspace member asking a calculation for someone): "me", a mention of
+// themself or their own linked athlete's name. Every other name gets the
+// one refusal of notYoursErr, whether it names another athlete, a hidden
+// one (private, under 18 without consent) or nobody, so that the reply
+// never tells who is in the squad.
+func (c *call) ownAthlete(tx Tx, name string) (record.Athlete, error) {
+	if strings.EqualFold(name, "me") || isMention(name) && mentionID(name) == c.user.ID {
+		return c.findAthlete(tx, name) // its refusals concern the speaker alone
+	}
+	var own record.Athlete
+	if c.user.Role == record.RoleAthlete && c.user.AthleteID != 0 {
+		a, ok, err := tx.AthleteByID(c.user.AthleteID)
+		if err != nil {
+			return record.Athlete{}, err
+		}
+		if ok && foldName(a.Name) == foldName(nfc(name)) {
+			return a, nil
+		}
+		if ok {
+			own = a
+		}
+	}
+	return record.Athlete{}, c.notYoursErr(name, own)
+}
+
+// notYoursErr is the refusal of a name that is not the speaker's own
+// athlete: the name as typed, the role that would be needed and who grants
+// it, and the way to the speaker's own jumps, with a did-you-mean when the
+// name is close to the speaker's own athlete's. It depends only on what was
+// typed and on the speaker, never on whether the name exists.
+func (c *call) notYoursErr(name string, own record.Athlete) error {
+	if own.Name != "" {
+		if s, ok := nearest(name, []string{own.Name}); ok {
+			return forbiddenErr(replaceWord(c.req.Text, name, s), "%q: another athlete's jumps and profile need the role coach; you see your own. Did you mean %s?", name, s)
+		}
+	}
+	return forbiddenErr("history me", "%q: logging for or reading another athlete needs the role coach; you are %s, with your own athlete only (`history me`). A head coach grants roles; a coach links you with `athlete link NAME @you`.",
+		name, withArticle(roleName(c.user.Role)))
+}

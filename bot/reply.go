@@ -54,6 +54,11 @@ type Reply struct {
 	// when the line ends in the word "more" (for commands that offer
 	// details); Slack shows a Details button that expands the same message.
 	Details *Reply
+	// DetailsCommand is the command line that shows Details without doing
+	// anything else (the Slack Details button runs it); empty means the
+	// line as typed with "more" at the end. A command that writes sets it
+	// (log: `line N more`), so that pressing Details never writes again.
+	DetailsCommand string
 }
 
 // Field is one labelled value, e.g. {"Margin", "+4.1 ± 2.3 cm"}.

@@ -48,3 +48,15 @@ func TestWithDetailsAddsExpandButton(t *testing.T) {
 		t.Fatal("an ordinary button is taken for an expand button")
 	}
 }
+
+// TestWithDetailsRunsTheReadOnlyCommand: a reply from a command that writes
+// names a read-only command for its details (log: `line N more`), and the
+// Details button runs that one, never the typed line again.
+func TestWithDetailsRunsTheReadOnlyCommand(t *testing.T) {
+	r := bot.Reply{Title: "Logged", Details: &bot.Reply{Title: "Logged"}, DetailsCommand: "line 7 more",
+		Actions: []bot.Action{{Label: "Undo", Command: "drop #7"}}}
+	got := WithDetails(r, "log Kai 1.90 o vz 4.3")
+	if len(got.Actions) != 2 || got.Actions[1].Command != "line 7 more" || !got.Actions[1].Expand {
+		t.Fatalf("actions %+v, want Undo then Details running line 7 more", got.Actions)
+	}
+}

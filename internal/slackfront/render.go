@@ -27,14 +27,19 @@ const detailsLabel = "Details"
 
 // WithDetails adds a Details button to a reply that has a full read-out
 // behind it (bot.Reply.Details): pressing it runs the same command line
-// with "more" at the end and expands the message in place. text is the
+// with "more" at the end (or the reply's own read-only DetailsCommand, for
+// a command that writes) and expands the message in place. text is the
 // command line as the asker typed it.
 func WithDetails(r bot.Reply, text string) bot.Reply {
 	text = strings.TrimSpace(text)
 	if r.Details == nil || text == "" {
 		return r
 	}
-	r.Actions = append(slices.Clone(r.Actions), bot.Action{Label: detailsLabel, Command: text + " more", Expand: true})
+	cmd := text + " more"
+	if r.DetailsCommand != "" {
+		cmd = r.DetailsCommand
+	}
+	r.Actions = append(slices.Clone(r.Actions), bot.Action{Label: detailsLabel, Command: cmd, Expand: true})
 	return r
 }
 
