@@ -25,7 +25,7 @@ const meetListMax = 12
 func pickFiled(filed []meetsheet.Sheet, args []token) (meetsheet.Sheet, error) {
 	words := joinRaw(args)
 	if len(filed) == 0 {
-		return meetsheet.Sheet{}, notFoundErr(meetOpenExample, "no meet sheet is filed yet; meet close files the open one")
+		return meetsheet.Sheet{}, notFoundErr(meetOpenExample, "no meet sheet is filed yet, so none answers to %q; meet close files the open one", words)
 	}
 	switch {
 	case len(args) == 1 && args[0].Lower == "last":
