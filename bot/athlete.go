@@ -492,8 +492,9 @@ func runAthleteRemove(c *call) (Reply, error) {
 		}, nil
 	}
 	var (
-		gone            record.Athlete
-		removed, sheets int
+		gone    record.Athlete
+		removed int
+		sheets  []sheetExcerpt
 	)
 	err := c.update(func(tx Tx) error {
 		var err error
@@ -514,7 +515,7 @@ func runAthleteRemove(c *call) (Reply, error) {
 		return Reply{}, err
 	}
 	lines := []string{fmt.Sprintf("%d records deleted (profile, jumps, links).", removed)}
-	if sheets > 0 {
+	if len(sheets) > 0 {
 		lines = append(lines, fmt.Sprintf("On the open meet sheet as %q now; the other places are unchanged.", meetsheet.RemovedLabel))
 	}
 	return Reply{Title: "Removed " + gone.Name, Lines: lines}, nil

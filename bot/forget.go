@@ -66,9 +66,10 @@ func (c *call) forgetInTx(tx Tx, a record.Athlete) (forgetExport, forgotten, err
 	if n.Lines < 0 {
 		return exp, n, fmt.Errorf("forget %s: the store removed %d records, fewer than the %d counted", a.Name, removed, n.Profiles+n.Attempts+n.Links)
 	}
-	if n.Sheets, err = scrubSheets(tx, a.ID, true); err != nil {
+	if exp.Sheets, err = scrubSheets(tx, a.ID, true); err != nil {
 		return exp, n, err
 	}
+	n.Sheets = len(exp.Sheets)
 	for _, u := range users {
 		if u.Role != record.RoleAthlete {
 			continue

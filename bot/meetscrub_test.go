@@ -122,6 +122,25 @@ func TestForgetScrubsMeetSheets(t *testing.T) {
 
 	r := te.must("forget Mira confirm")
 	contains(t, r, `Taken off 2 meet sheets (named "removed athlete" there; other places unchanged).`)
+	// The export, the only copy left, holds her lines of both sheets.
+	var exp struct {
+		Sheets []struct {
+			Meet  string  `json:"meet"`
+			Filed bool    `json:"filed"`
+			Place int     `json:"place"`
+			BestM float64 `json:"best_m"`
+			Jumps string  `json:"jumps"`
+		} `json:"meet_sheets"`
+	}
+	if len(r.Files) != 1 || json.Unmarshal(r.Files[0].Data, &exp) != nil || len(exp.Sheets) != 2 {
+		t.Fatalf("export: %d files, %+v", len(r.Files), exp)
+	}
+	if x := exp.Sheets[0]; x.Filed || x.Meet != "Winter cup" || x.Place != 1 || x.BestM != 1.60 || x.Jumps != "1.60 o" {
+		t.Errorf("export of the open sheet: %+v", x)
+	}
+	if x := exp.Sheets[1]; !x.Filed || x.Meet != "Club night" || x.Place != 1 || x.BestM != 1.65 || x.Jumps != "1.60 o 1.65 o 1.70 xxx" {
+		t.Errorf("export of the filed sheet: %+v", x)
+	}
 
 	open, filed := storedSheets(t, te)
 	if open == nil || len(filed) != 1 {
