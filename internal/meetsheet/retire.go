@@ -6,6 +6,7 @@ import (
 	"time"
 
 	"github.com/lathmark-team/lathmark/internal/series"
+	"github.com/lathmark-team/lathmark/internal/standings"
 )
 
 // Errors of Retire (and of Log for a competitor who retired).
@@ -56,6 +57,28 @@ func (s *Sheet) Retire(name, by string, at time.Time) error {
 	}
 	s.Entries = append(s.Entries, Entry{Name: c.Name, By: by, Time: at, Retire: true})
 	return nil
+}
+
+// ErrNoJumpOff means a jump-off entry on a sheet where a competitor tied
+// for first has retired: the sheet holds no jump-off then (Now).
+var ErrNoJumpOff = errors.New("meetsheet: a competitor tied for first retired; no jump-off on the sheet")
+
+// retiredTiedForFirst reports a retired competitor among those tied for
+// first whom a jump-off would decide.
+func (s *Sheet) retiredTiedForFirst() bool {
+	if !s.JumpOff {
+		return false
+	}
+	cs := make([]standings.Competitor, len(s.Competitors))
+	for i, c := range s.Competitors {
+		cs[i] = standings.Competitor{Name: c.Name, Series: series.Summarize(s.Series(c.Name)), Retired: s.Retired(c.Name)}
+	}
+	for _, x := range standings.Place(cs, 0, true) {
+		if x.JumpOff && x.Retired {
+			return true
+		}
+	}
+	return false
 }
 
 // ErrNotOn means the name is not on the sheet.

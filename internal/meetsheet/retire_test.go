@@ -96,3 +96,39 @@ func TestScrubKeepsEveryonesPlace(t *testing.T) {
 		}
 	}
 }
+
+// TestRetiredTiedForFirst: on a jump-off sheet, three tied for first by
+// the tie rules (1.80 xo, 1.83 xxx each: same jumps at 1.80, TR 26.8.1,
+// and failures to it, TR 26.8.2; from memory), one of whom retired before
+// 1.83: the sheet holds no jump-off (how that tie is settled is the
+// officials' call, not modelled) and shows an equal first (TR 26.8.3),
+// open and filed alike; a jump-off entry is refused.
+func TestRetiredTiedForFirst(t *testing.T) {
+	s := &Sheet{ID: "j1", Name: "Final", Date: "2026-06-06", JumpOff: true}
+	for _, n := range []string{"Ada", "Bea", "Cy"} {
+		_ = s.Add(Competitor{Name: n})
+	}
+	for _, n := range []string{"Ada", "Bea", "Cy"} {
+		mustLog(t, s, n, 1.80, "xo")
+	}
+	if err := s.Retire("Cy", "U", t0); err != nil {
+		t.Fatal(err)
+	}
+	mustLog(t, s, "Ada", 1.83, "xxx")
+	mustLog(t, s, "Bea", 1.83, "xxx")
+	for _, st := range []State{s.Now(), s.Final()} {
+		if st.JumpOff || !st.Over {
+			t.Errorf("a jump-off is on: %+v", st)
+		}
+		for _, x := range st.Standings {
+			if x.Place != 1 || !x.Shared || x.JumpOff {
+				t.Errorf("%s: place %d shared %v jump-off %v, want an equal first", x.Name, x.Place, x.Shared, x.JumpOff)
+			}
+		}
+	}
+	e := entry("Ada", 1.83, "o")
+	e.Jumps[0].JumpOff = true
+	if err := s.Log(e); !errors.Is(err, ErrNoJumpOff) {
+		t.Errorf("a jump-off entry: %v", err)
+	}
+}

@@ -182,6 +182,9 @@ func (s *Sheet) Log(e Entry) error {
 	if s.Retired(c.Name) {
 		return ErrRetired
 	}
+	if len(e.Jumps) > 0 && e.Jumps[0].JumpOff && s.retiredTiedForFirst() {
+		return ErrNoJumpOff
+	}
 	alone := s.aloneExcept(c.Name)
 	for i := range e.Jumps {
 		e.Jumps[i].Alone = alone && !e.Jumps[i].JumpOff

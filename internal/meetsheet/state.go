@@ -105,7 +105,7 @@ func (s *Sheet) Now() State {
 	}
 	st.Standings = standings.Place(cs, st.CurrentM, s.JumpOff)
 	if st.Over && s.JumpOff {
-		var tied []string
+		var tied []string // still to jump it
 		retiredTied := false
 		for _, x := range st.Standings {
 			if x.JumpOff && !x.Retired {
@@ -113,13 +113,13 @@ func (s *Sheet) Now() State {
 			}
 			retiredTied = retiredTied || x.JumpOff && x.Retired
 		}
-		if retiredTied && len(tied) < 2 {
-			// A competitor who retired takes no part in the jump-off; with
-			// fewer than two left to jump it there is none, and the tie
-			// stands as an equal place (TR 26.8.3).
+		if retiredTied {
+			// A competitor tied for first retired: the sheet holds no
+			// jump-off (how such a tie is settled is the officials' call)
+			// and the tie stands as an equal place (TR 26.8.3), as when a
+			// sheet is filed without a jump-off result.
 			st.Standings = standings.Place(cs, st.CurrentM, false)
-		}
-		if len(tied) > 1 {
+		} else if len(tied) > 1 {
 			st.Over = false
 			jumpOffNow(&st, tied, sums)
 			return st
@@ -224,7 +224,8 @@ func jumpOffNow(st *State, tied []string, sums map[string]series.Summary) {
 
 // Final reads a filed sheet: the places as the competition left them,
 // with nobody called any more. A jump-off for first that the sheet does
-// not settle is an equal first, as closing the sheet says.
+// not settle (or holds none, a competitor tied for first having retired)
+// is an equal first, as closing the sheet says.
 func (s *Sheet) Final() State {
 	st := s.Now()
 	jumpOff := false
@@ -235,7 +236,7 @@ func (s *Sheet) Final() State {
 	for _, c := range s.Competitors {
 		cs = append(cs, standings.Competitor{Name: c.Name, Series: series.Summarize(s.Series(c.Name)), Retired: s.Retired(c.Name)})
 	}
-	st.Standings = standings.Place(cs, 0, s.JumpOff && !jumpOff)
+	st.Standings = standings.Place(cs, 0, s.JumpOff && !jumpOff && !s.retiredTiedForFirst())
 	st.ToJump, st.Waiting, st.CurrentM, st.NextM, st.NextWhy = nil, 0, 0, 0, ""
 	st.JumpOff, st.Over = false, st.Started
 	return st
