@@ -8,6 +8,7 @@ import (
 	"strings"
 	"unicode"
 
+	"github.com/lathmark-team/lathmark/internal/meetsheet"
 	"github.com/lathmark-team/lathmark/internal/record"
 	"github.com/lathmark-team/lathmark/internal/units"
 )
@@ -490,6 +491,7 @@ func runAthleteRemove(c *call) (Reply, error) {
 	var (
 		gone    record.Athlete
 		removed int
+		sheets  []sheetExcerpt
 	)
 	err := c.update(func(tx Tx) error {
 		var err error
@@ -499,12 +501,21 @@ func runAthleteRemove(c *call) (Reply, error) {
 		if removed, err = tx.DeleteAthlete(gone.ID); err != nil {
 			return err
 		}
+		// The open sheet loses the name too; filed sheets are the meet's
+		// record and keep it (forget takes it off them).
+		if sheets, err = scrubSheets(tx, gone.ID, false); err != nil {
+			return err
+		}
 		return c.audit(tx, "athlete remove", gone.Name, gone, nil)
 	})
 	if err != nil {
 		return Reply{}, err
 	}
-	return Reply{Title: "Removed " + gone.Name, Lines: []string{fmt.Sprintf("%d records deleted (profile, jumps, links).", removed)}}, nil
+	lines := []string{fmt.Sprintf("%d records deleted (profile, jumps, links).", removed)}
+	if len(sheets) > 0 {
+		lines = append(lines, fmt.Sprintf("On the open meet sheet as %q now; the other places are unchanged.", meetsheet.RemovedLabel))
+	}
+	return Reply{Title: "Removed " + gone.Name, Lines: lines}, nil
 }
 
 func runAthleteLink(c *call) (Reply, error) {

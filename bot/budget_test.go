@@ -63,6 +63,7 @@ var budgetByGolden = []struct {
 	{"block", "a pasted block of lines", listBudget},
 	{"meet", "the meet sheet commands", confirmBudget},
 	{"meet-standings", "standings", listBudget},
+	{"meet-list", "meet list", listBudget},
 	{"meet-err", "a meet sheet command refused", refusalBudget},
 }
 

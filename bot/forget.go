@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"time"
 
+	"github.com/lathmark-team/lathmark/internal/meetsheet"
 	"github.com/lathmark-team/lathmark/internal/record"
 )
 
@@ -14,6 +15,9 @@ type forgotten struct {
 	Lines    int `json:"logged_lines"`
 	Links    int `json:"chat_links"`
 	Roles    int `json:"athlete_roles"` // withdrawn with the link (not a record of its own)
+	// Sheets counts the meet sheets (open and filed) the athlete was taken
+	// off: renamed to a neutral label, not deleted (not a record removed).
+	Sheets int `json:"meet_sheets"`
 }
 
 // total is every record removed: a linked user's record is counted once,
@@ -27,13 +31,17 @@ func (n forgotten) sentence() string {
 	if n.Roles > 0 {
 		s += fmt.Sprintf(" %s withdrawn with the link.", plural(n.Roles, "athlete role"))
 	}
+	if n.Sheets > 0 {
+		s += fmt.Sprintf(" Taken off %s (named %q there; other places unchanged).", plural(n.Sheets, "meet sheet"), meetsheet.RemovedLabel)
+	}
 	return s
 }
 
 // forgetInTx exports and deletes everything about athlete a: the profile,
 // its attempts and logged lines, the chat users' links to it, and the
 // athlete role of a user linked to it (a user left with no role and no
-// link is removed).
+// link is removed); on the open and the filed meet sheets the athlete's
+// name and id give way to a neutral label (scrubSheets).
 func (c *call) forgetInTx(tx Tx, a record.Athlete) (forgetExport, forgotten, error) {
 	exp := forgetExport{Exported: c.now.UTC(), Athlete: a}
 	var n forgotten
@@ -58,6 +66,10 @@ func (c *call) forgetInTx(tx Tx, a record.Athlete) (forgetExport, forgotten, err
 	if n.Lines < 0 {
 		return exp, n, fmt.Errorf("forget %s: the store removed %d records, fewer than the %d counted", a.Name, removed, n.Profiles+n.Attempts+n.Links)
 	}
+	if exp.Sheets, err = scrubSheets(tx, a.ID, true); err != nil {
+		return exp, n, err
+	}
+	n.Sheets = len(exp.Sheets)
 	for _, u := range users {
 		if u.Role != record.RoleAthlete {
 			continue

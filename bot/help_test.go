@@ -60,9 +60,10 @@ func TestHelpExamplesRun(t *testing.T) {
 // helpSetup are lines run before a help example that needs some state: the
 // meet sheet commands need an open sheet (and an entry to take off).
 var helpSetup = map[string][]string{
-	"meet add":   {"meet open Club-night"},
-	"meet log":   {"meet open Club-night", "meet add Bea guest"},
-	"meet undo":  {"meet open Club-night", "meet add Bea guest", "meet log Bea 1.60 xo"},
-	"meet close": {"meet open Club-night"},
-	"standings":  {"meet open Club-night"},
+	"meet add":    {"meet open Club-night"},
+	"meet log":    {"meet open Club-night", "meet add Bea guest"},
+	"meet undo":   {"meet open Club-night", "meet add Bea guest", "meet log Bea 1.60 xo"},
+	"meet close":  {"meet open Club-night"},
+	"meet retire": {"meet open Club-night", "meet add Bea guest", "meet log Bea 1.60 o"},
+	"standings":   {"meet open Club-night"},
 }

@@ -64,8 +64,12 @@ func meetCommands() []command {
 			summary: "take the sheet's last entry off", run: runMeetUndo},
 		{name: "meet close", topic: "meet", access: coachOnly, usage: "meet close", example: meetCloseExample,
 			summary: "file the sheet: the squad's results go into their log as meet jumps (bests, digest, history)", run: runMeetClose},
-		{name: "standings", topic: "meet", access: selfOrCoach, usage: "standings", example: standingsExample, details: true,
-			summary: "places on the open sheet by the tie rules (TR 26.8), each tie with its rule, who is still in and the next height", run: runStandings},
+		{name: "meet retire", topic: "meet", access: coachOnly, usage: "meet retire NAME", example: meetRetireExample,
+			summary: "a competitor withdraws: the place stands on the heights cleared, no longer still in or called (meet undo takes it back)", run: runMeetRetire},
+		{name: "standings", topic: "meet", access: selfOrCoach, usage: "standings [last|NAME|DATE]", example: standingsExample, details: true,
+			summary: "places on the open sheet by the tie rules (TR 26.8), each tie with its rule, who is still in and the next height; last, a meet's name or date: a filed sheet's final places", run: runStandings},
+		{name: "meet list", aliases: []string{"meets"}, topic: "meet", access: selfOrCoach, usage: "meet list", example: meetListExample, details: true,
+			summary: "the filed sheets, newest first, a line each with its verdict", run: runMeetList},
 	}
 }
 

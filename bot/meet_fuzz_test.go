@@ -14,12 +14,15 @@ import (
 
 // FuzzMeetSheet types arbitrary meet lines on an open sheet: nothing fails
 // inside the bot, and every competitor's series on the stored sheet still
-// keeps the rules (each entry was checked by internal/series).
+// keeps the rules (each entry was checked by internal/series), and no
+// competitor has an entry after retiring (a retirement is final until
+// meet undo takes it off the end).
 func FuzzMeetSheet(f *testing.F) {
 	for _, seed := range []string{
 		"meet log Gus 1.60 o", "meet log Ada 1.60 xo 1.65 xxx", "meet log Gus 1.65 x- 1.70 xx", "meet log Ada 1.70 x jumpoff",
 		"meet undo", "standings", "meet add Zed guest", "log Mira 1.60 xo meet", "undo", "meet log Mira 1.65 o",
 		"meet log Gus 1.62 o", "meet log Ada 5-5 o", "meet log Ada 1.60 o 1.60 o",
+		"meet retire Gus", "meet retire Ada", "meet retire Mira",
 	} {
 		f.Add(seed)
 	}
@@ -44,6 +47,13 @@ func FuzzMeetSheet(f *testing.F) {
 				if v := series.Summarize(s.Series(c.Name)).Verdict; !v.Valid() {
 					t.Fatalf("after %q the sheet holds a series of %s breaking %v", line, c.Name, v.Breach.Rule)
 				}
+			}
+			retired := map[string]bool{}
+			for _, e := range s.Entries {
+				if retired[e.Name] {
+					t.Fatalf("after %q the sheet holds an entry of %s after retiring", line, e.Name)
+				}
+				retired[e.Name] = e.Retire
 			}
 			return nil
 		})

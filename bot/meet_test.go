@@ -167,9 +167,9 @@ func TestMeetSquadThroughLogAndClose(t *testing.T) {
 	if strings.Contains(plain(r), "for Mira") {
 		t.Errorf("Mira's 1.65 is under her 1.70: no new best:\n%s", plain(r))
 	}
-	if r := te.run("standings"); r.OK() {
-		t.Errorf("standings after close: %s", plain(r))
-	}
+	// After close no sheet is open: standings says so and offers the one
+	// just filed, its verdict first.
+	contains(t, te.must("standings"), "No meet sheet is open. Last filed: Club night (2026-11-25): Ren wins at 1.80.", "standings last")
 	contains(t, te.must("history Ren"), "meet", "1.65 o, 1.70 o, 1.75 xo, 1.80 xxo, 1.83 xxx")
 	// The logged line #1, then the sheet's entry filed by meet close as a
 	// numbered line of its own, which drop then reaches.
@@ -259,6 +259,8 @@ func TestMeetRoles(t *testing.T) {
 		{"meet undo", []string{head, coach}},
 		{"meet close", []string{head, coach}},
 		{"standings", []string{head, coach, athlete}},
+		{"meet retire Gus", []string{head, coach}},
+		{"meet list", []string{head, coach, athlete}},
 	} {
 		for _, who := range []string{head, coach, athlete, nobody} {
 			te := newTestEngine(t)

@@ -132,12 +132,13 @@ func barOrNone(m float64, imp bool) string {
 	return units.Bar(m, imp)
 }
 
-// forgetRemoved turns the sheet's squad athletes whose profile was removed
-// (forget) into unnamed outsiders, so that the filed sheet keeps their
+// forgetRemoved takes the sheet's squad athletes whose profile is gone
+// (removed before forget and athlete remove scrubbed sheets) off it as
+// forget does (meetsheet.Sheet.Scrub), so that the filed sheet keeps their
 // places but not their names, and nothing is filed for them.
 func forgetRemoved(tx Tx, s *meetsheet.Sheet) error {
-	n := 0
-	for i, comp := range s.Competitors {
+	var gone []uint64
+	for _, comp := range s.Competitors {
 		if comp.Outsider() {
 			continue
 		}
@@ -146,10 +147,11 @@ func forgetRemoved(tx Tx, s *meetsheet.Sheet) error {
 			return err
 		}
 		if !ok {
-			n++
-			s.Rename(comp.Name, fmt.Sprintf("removed-%d", n))
-			s.Competitors[i].AthleteID = 0
+			gone = append(gone, comp.AthleteID)
 		}
+	}
+	for _, id := range gone {
+		s.Scrub(id)
 	}
 	return nil
 }

@@ -104,6 +104,12 @@ func (c *call) logOnSheet(s *meetsheet.Sheet, e meetsheet.Entry, imp bool) error
 	if errors.Is(err, meetsheet.ErrFull) {
 		return conflictErr(meetCloseExample, "the sheet holds at most %d entries; file it with meet close", meetsheet.MaxEntries)
 	}
+	if errors.Is(err, meetsheet.ErrRetired) {
+		return conflictErr(meetUndoExample, "not on the sheet: %s retired from the competition; if that was a mistake, meet undo takes the retirement back while it is the last entry", e.Name)
+	}
+	if errors.Is(err, meetsheet.ErrNoJumpOff) {
+		return conflictErr(standingsExample, "not on the sheet: a competitor tied for first has retired, so the sheet holds no jump-off (how that tie is settled is the officials' call; the sheet shows an equal first, TR 26.8.3)")
+	}
 	var se *meetsheet.StepError
 	if errors.As(err, &se) {
 		bs := make([]string, len(se.StepsM))

@@ -18,27 +18,64 @@ const (
 )
 
 func runStandings(c *call) (Reply, error) {
-	if len(c.args) > 0 {
-		return Reply{}, usageErr(standingsExample, "standings takes no words after it (%q is extra); it reads the open sheet", joinRaw(c.args))
-	}
 	var r Reply
 	err := c.view(func(tx Tx) error {
 		team, _, err := teamAndZone(tx)
 		if err != nil {
 			return err
 		}
-		s, err := mustOpenSheet(tx)
+		imp := imperial(team)
+		s, open, err := openSheet(tx)
 		if err != nil {
 			return err
 		}
-		hide, err := c.hiddenOnSheet(tx, s)
+		words := joinRaw(c.args)
+		if open && (words == "" || strings.EqualFold(words, s.Name)) {
+			hide, err := c.hiddenOnSheet(tx, s)
+			if err != nil {
+				return err
+			}
+			r = standingsReply(s, s.Now(), imp, hide, false)
+			return nil
+		}
+		filed, err := filedSheets(tx)
 		if err != nil {
 			return err
 		}
-		r = standingsReply(s, s.Now(), imperial(team), hide)
+		if words == "" {
+			r, err = c.noOpenSheet(tx, filed, imp)
+			return err
+		}
+		f, err := pickFiled(filed, c.args)
+		if err != nil {
+			return err
+		}
+		hide, err := c.hiddenOnSheet(tx, f)
+		if err != nil {
+			return err
+		}
+		r = standingsReply(f, f.Final(), imp, hide, true)
 		return nil
 	})
 	return r, err
+}
+
+// noOpenSheet answers standings with no sheet open: it says so and offers
+// the last filed sheet, with its verdict (or refuses when none was filed).
+func (c *call) noOpenSheet(tx Tx, filed []meetsheet.Sheet, imp bool) (Reply, error) {
+	if len(filed) == 0 {
+		return Reply{}, notFoundErr(meetOpenExample, "no meet sheet is open and none is filed; a coach opens one with meet open NAME [DATE] [steps ...]")
+	}
+	last := filed[0]
+	hide, err := c.hiddenOnSheet(tx, last)
+	if err != nil {
+		return Reply{}, err
+	}
+	return Reply{
+		Title:   "No meet sheet is open. Last filed: " + standingsTitle(last, last.Final(), imp, hide),
+		Lines:   []string{"standings last shows its final places; meet list lists every filed sheet."},
+		Actions: []Action{{Label: "Last filed sheet", Command: "standings last"}},
+	}, nil
 }
 
 // ordinal writes 1st, 2nd, 3rd, 4th, 11th, 21st.
@@ -56,11 +93,16 @@ func ordinal(n int) string {
 	return strconv.Itoa(n) + suf
 }
 
-func standingsReply(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[string]bool) Reply {
+// standingsReply shows a sheet's standings: the open sheet's as they are
+// now, or (filed) a filed sheet's final places.
+func standingsReply(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[string]bool, filed bool) Reply {
 	if len(s.Competitors) == 0 {
-		return Reply{Title: s.Name + " (" + s.Date + "): nobody on the sheet yet.", Example: meetAddExample}
+		return Reply{Title: s.Name + " (" + s.Date + "): nobody on the sheet.", Example: meetAddExample}
 	}
 	r := Reply{Title: standingsTitle(s, st, imp, hide), Caution: meetCaution}
+	if filed {
+		r.Title = "Filed: " + r.Title
+	}
 	full := &Table{Header: []string{"place", "name", "best", "jumps at best", "failures to best", "heights"}}
 	short := &Table{Header: []string{"place", "name", "best", "heights"}}
 	masked := 0
@@ -78,7 +120,10 @@ func standingsReply(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[st
 			best = units.Bar(x.BestM, imp)
 		}
 		heights := seriesText(s, x.Name, imp)
-		if x.Out {
+		switch {
+		case x.Retired:
+			heights += " (retired)"
+		case x.Out:
 			heights += " (out)"
 		}
 		full.Rows = append(full.Rows, []string{place, x.Name, best, strconv.Itoa(x.AttemptsAtBest), strconv.Itoa(x.FailuresToBest), heights})
@@ -88,6 +133,9 @@ func standingsReply(s meetsheet.Sheet, st meetsheet.State, imp bool, hide map[st
 	}
 	ties := tieNotes(st.Standings, imp, hide)
 	tail := []string{roundLine(st, imp, hide)}
+	if filed {
+		tail = []string{"Final places as filed; meet list shows the other filed sheets."}
+	}
 	if masked > 0 {
 		tail = append(tail, fmt.Sprintf("%s not shown here (private or under 18): ask in a direct message.", plural(masked, "squad athlete")))
 	}

@@ -2,6 +2,7 @@ package bot
 
 import (
 	"fmt"
+	"sort"
 
 	"github.com/lathmark-team/lathmark/internal/meetsheet"
 )
@@ -15,6 +16,10 @@ type meetTx interface {
 	PutOpenMeet(s meetsheet.Sheet) error
 	// FileMeet files the sheet and leaves no sheet open.
 	FileMeet(s meetsheet.Sheet) error
+	// FiledMeets calls fn for every filed sheet, oldest date first.
+	FiledMeets(fn func(meetsheet.Sheet) error) error
+	// PutFiledMeet replaces a filed sheet (same date and id).
+	PutFiledMeet(s meetsheet.Sheet) error
 }
 
 // sheets returns the transaction's meet sheets.
@@ -54,4 +59,27 @@ func putSheet(tx Tx, s meetsheet.Sheet) error {
 		return err
 	}
 	return m.PutOpenMeet(s)
+}
+
+// filedSheets reads every filed sheet, newest first (by date, then by
+// the time it was opened).
+func filedSheets(tx Tx) ([]meetsheet.Sheet, error) {
+	m, err := sheets(tx)
+	if err != nil {
+		return nil, err
+	}
+	var out []meetsheet.Sheet
+	if err := m.FiledMeets(func(s meetsheet.Sheet) error {
+		out = append(out, s)
+		return nil
+	}); err != nil {
+		return nil, err
+	}
+	sort.SliceStable(out, func(i, j int) bool {
+		if out[i].Date != out[j].Date {
+			return out[i].Date > out[j].Date
+		}
+		return out[i].Opened.After(out[j].Opened)
+	})
+	return out, nil
 }

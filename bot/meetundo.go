@@ -39,7 +39,11 @@ func runMeetUndo(c *call) (Reply, error) {
 			return err
 		}
 		imp := imperial(team)
-		r = Reply{Title: fmt.Sprintf("Taken off the sheet: %s %s.", e.Name, jumpsText(e.Jumps, imp)),
+		title := fmt.Sprintf("Taken off the sheet: %s %s.", e.Name, jumpsText(e.Jumps, imp))
+		if e.Retire {
+			title = fmt.Sprintf("Taken back: %s's retirement; %s is still in.", e.Name, e.Name)
+		}
+		r = Reply{Title: title,
 			Lines: []string{roundLine(s.Now(), imp, hide)}, Ephemeral: hide[e.Name]}
 		return nil
 	})

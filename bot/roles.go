@@ -280,6 +280,9 @@ type forgetExport struct {
 	Athlete  record.Athlete   `json:"athlete"`
 	Attempts []record.Attempt `json:"attempts"`
 	Users    []record.User    `json:"linked_users"`
+	// Sheets: the athlete's lines on the meet sheets, before forget took
+	// the name off them.
+	Sheets []sheetExcerpt `json:"meet_sheets,omitempty"`
 }
 
 func runForget(c *call) (Reply, error) {

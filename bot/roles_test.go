@@ -99,6 +99,8 @@ func roleCases(cmds []bot.CommandInfo) []roleCase {
 		{line: "drop #2", allowed: staff},
 		{line: "undo line 2", allowed: staff},
 		{line: "undo line 1", allowed: members},
+		{line: "standings last", allowed: members}, // a filed sheet: read like the open one
+		{line: "meets", allowed: members},
 	}...)
 }
 

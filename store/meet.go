@@ -99,3 +99,17 @@ func forEachFiled(b *bolt.Bucket, fn func(meetsheet.Sheet) error) error {
 func filedMeetKey(s meetsheet.Sheet) []byte {
 	return []byte("filed\x00" + s.Date + "\x00" + s.ID)
 }
+
+// PutFiledMeet replaces a filed sheet under its date and id (forget takes
+// an athlete off the filed sheets). A sheet that was never filed is an
+// error: filing goes through FileMeet.
+func (t *Tx) PutFiledMeet(s meetsheet.Sheet) error {
+	b := t.tx.Bucket([]byte(bucketMeets))
+	if s.ID == "" || b == nil || b.Get(filedMeetKey(s)) == nil {
+		return fmt.Errorf("store: put filed meet sheet %q: not filed", s.ID)
+	}
+	if err := putJSON(b, filedMeetKey(s), s); err != nil {
+		return fmt.Errorf("store: put filed meet sheet %s: %w", s.ID, err)
+	}
+	return nil
+}

@@ -52,3 +52,37 @@ func TestMeetSheetSurvivesReopen(t *testing.T) {
 		t.Error(err)
 	}
 }
+
+// PutFiledMeet replaces a filed sheet in place (same key, still sealed: the
+// file passes its check) and refuses a sheet that was never filed.
+func TestPutFiledMeetReplaces(t *testing.T) {
+	db, err := Open(filepath.Join(t.TempDir(), "m.db"), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	s := meetsheet.Sheet{ID: "x2", Name: "Cup", Date: "2026-06-07", Competitors: []meetsheet.Competitor{{Name: "Ann", AthleteID: 7}}}
+	err = db.Update(t.Context(), func(tx *Tx) error {
+		if err := tx.PutFiledMeet(s); err == nil {
+			t.Error("a sheet never filed was put")
+		}
+		if err := tx.FileMeet(s); err != nil {
+			return err
+		}
+		s.Competitors[0] = meetsheet.Competitor{Name: "removed athlete"}
+		return tx.PutFiledMeet(s)
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []meetsheet.Sheet
+	_ = db.View(t.Context(), func(tx *Tx) error {
+		return tx.FiledMeets(func(s meetsheet.Sheet) error { got = append(got, s); return nil })
+	})
+	if len(got) != 1 || got[0].Competitors[0].Name != "removed athlete" || got[0].Competitors[0].AthleteID != 0 {
+		t.Errorf("filed sheets: %+v", got)
+	}
+	if err := db.Check(); err != nil {
+		t.Error(err)
+	}
+}

@@ -30,7 +30,9 @@ func TestTerminalMeetWorkedExample(t *testing.T) {
 		"meet log Dora 1.81 o", // refused: out after three consecutive failures (TR 26.2)
 		"standings",
 		"meet close",
-		"standings",
+		"standings",      // none open: offers the last filed sheet
+		"standings last", // the filed sheet's final places
+		"meets",
 	}, "\n") + "\n"
 	out, errs, code = runLines(t, second, "--data", data)
 	if code != 0 {
@@ -43,7 +45,8 @@ func TestTerminalMeetWorkedExample(t *testing.T) {
 		"Ada ahead of Cleo at 1.75: fewest failures up to and including the last height cleared (TR 26.8.2)", // second by TR 26.8.2
 		"Cleo and Dora share 3rd at 1.75: still tied: equal place (TR 26.8.3)",                               // a shared place
 		"Filed: Harbour Open",
-		"no meet sheet is open",
+		"No meet sheet is open. Last filed: Harbour Open (",
+		"1 filed sheet, newest first.",
 	} {
 		if !strings.Contains(out, want) {
 			t.Errorf("terminal output lacks %q:\n%s", want, out)
@@ -51,6 +54,20 @@ func TestTerminalMeetWorkedExample(t *testing.T) {
 	}
 	if m := regexp.MustCompile(`(?m)^\s+4\s`).FindString(out); m != "" {
 		t.Errorf("nobody is fourth after a shared third:\n%s", out)
+	}
+	// standings last reads the filed sheet back with the open sheet's tie
+	// notes (the same hand placing, TR 26.8.1 to 26.8.3).
+	_, filed, _ := strings.Cut(out, "[Last filed sheet]")
+	for _, want := range []string{
+		"Filed: Harbour Open (",
+		"Bea ahead of Ada at 1.75: fewest jumps at the height of the tie (TR 26.8.1)",
+		"Ada ahead of Cleo at 1.75: fewest failures up to and including the last height cleared (TR 26.8.2)",
+		"Cleo and Dora share 3rd at 1.75: still tied: equal place (TR 26.8.3)",
+		"Final places as filed",
+	} {
+		if !strings.Contains(filed, want) {
+			t.Errorf("standings last lacks %q:\n%s", want, filed)
+		}
 	}
 }
 

@@ -77,6 +77,9 @@ type Entry struct {
 	// sheet files nothing more for it.
 	LineID string       `json:"line,omitempty"`
 	Keys   []record.Key `json:"keys,omitempty"`
+	// Retire: the competitor retires from the competition here (no jumps;
+	// see Retire). Undo takes it back like any entry.
+	Retire bool `json:"retire,omitempty"`
 }
 
 // Find returns the competitor of a name (case-insensitive).
@@ -176,6 +179,12 @@ func (s *Sheet) Log(e Entry) error {
 		return ErrFull
 	}
 	e.Name = c.Name
+	if s.Retired(c.Name) {
+		return ErrRetired
+	}
+	if len(e.Jumps) > 0 && e.Jumps[0].JumpOff && s.retiredTiedForFirst() {
+		return ErrNoJumpOff
+	}
 	alone := s.aloneExcept(c.Name)
 	for i := range e.Jumps {
 		e.Jumps[i].Alone = alone && !e.Jumps[i].JumpOff
@@ -240,7 +249,7 @@ func (s *Sheet) aloneExcept(name string) bool {
 		if strings.EqualFold(c.Name, name) {
 			continue
 		}
-		if !series.Summarize(s.Series(c.Name)).Out {
+		if !series.Summarize(s.Series(c.Name)).Out && !s.Retired(c.Name) {
 			return false
 		}
 	}

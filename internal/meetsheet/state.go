@@ -60,14 +60,24 @@ func (s *Sheet) Now() State {
 			top = sm.LastBarM
 		}
 	}
-	// gone: out of the competition proper (out, or on to a jump-off).
-	gone := func(sm series.Summary) bool { return sm.Out || len(sm.JumpOff) > 0 }
+	retired := map[string]bool{}
+	for _, e := range s.Entries {
+		if e.Retire {
+			retired[e.Name] = true
+		}
+	}
+	// gone: out of the competition proper (out, retired, or on to a
+	// jump-off).
+	gone := func(name string) bool {
+		sm := sums[name]
+		return sm.Out || len(sm.JumpOff) > 0 || retired[name]
+	}
 	var st State
 	in := 0
 	roundDone := top > 0
 	for _, c := range s.Competitors {
 		sm := sums[c.Name]
-		if gone(sm) {
+		if gone(c.Name) {
 			continue
 		}
 		in++
@@ -91,17 +101,25 @@ func (s *Sheet) Now() State {
 	}
 	cs := make([]standings.Competitor, len(s.Competitors))
 	for i, c := range s.Competitors {
-		cs[i] = standings.Competitor{Name: c.Name, Series: sums[c.Name]}
+		cs[i] = standings.Competitor{Name: c.Name, Series: sums[c.Name], Retired: retired[c.Name]}
 	}
 	st.Standings = standings.Place(cs, st.CurrentM, s.JumpOff)
 	if st.Over && s.JumpOff {
-		var tied []string
+		var tied []string // still to jump it
+		retiredTied := false
 		for _, x := range st.Standings {
-			if x.JumpOff {
+			if x.JumpOff && !x.Retired {
 				tied = append(tied, x.Name)
 			}
+			retiredTied = retiredTied || x.JumpOff && x.Retired
 		}
-		if len(tied) > 1 {
+		if retiredTied {
+			// A competitor tied for first retired: the sheet holds no
+			// jump-off (how such a tie is settled is the officials' call)
+			// and the tie stands as an equal place (TR 26.8.3), as when a
+			// sheet is filed without a jump-off result.
+			st.Standings = standings.Place(cs, st.CurrentM, false)
+		} else if len(tied) > 1 {
 			st.Over = false
 			jumpOffNow(&st, tied, sums)
 			return st
@@ -109,7 +127,7 @@ func (s *Sheet) Now() State {
 	}
 	for _, c := range s.Competitors {
 		sm := sums[c.Name]
-		if gone(sm) {
+		if gone(c.Name) {
 			continue
 		}
 		// Done at the bar up: it was cleared or passed there (or above).
@@ -202,4 +220,24 @@ func jumpOffNow(st *State, tied []string, sums map[string]series.Summary) {
 	} else {
 		st.CurrentM = last.BarM - JumpOffRiseM
 	}
+}
+
+// Final reads a filed sheet: the places as the competition left them,
+// with nobody called any more. A jump-off for first that the sheet does
+// not settle (or holds none, a competitor tied for first having retired)
+// is an equal first, as closing the sheet says.
+func (s *Sheet) Final() State {
+	st := s.Now()
+	jumpOff := false
+	for _, x := range st.Standings {
+		jumpOff = jumpOff || x.JumpOff
+	}
+	cs := make([]standings.Competitor, 0, len(s.Competitors))
+	for _, c := range s.Competitors {
+		cs = append(cs, standings.Competitor{Name: c.Name, Series: series.Summarize(s.Series(c.Name)), Retired: s.Retired(c.Name)})
+	}
+	st.Standings = standings.Place(cs, 0, s.JumpOff && !jumpOff && !s.retiredTiedForFirst())
+	st.ToJump, st.Waiting, st.CurrentM, st.NextM, st.NextWhy = nil, 0, 0, 0, ""
+	st.JumpOff, st.Over = false, st.Started
+	return st
 }

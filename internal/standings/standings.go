@@ -30,6 +30,9 @@ import (
 type Competitor struct {
 	Name   string
 	Series series.Summary
+	// Retired: the competitor withdrew (their place stands on the heights
+	// cleared; they are out from then on).
+	Retired bool
 }
 
 // Of summarizes a series for the standings.
@@ -56,7 +59,8 @@ type Standing struct {
 	// JumpOff: tied for first, the meet uses a jump-off and it has not
 	// decided yet.
 	JumpOff bool
-	Out     bool // three consecutive failures
+	Out     bool // three consecutive failures, or retired
+	Retired bool // withdrew from the competition
 	// AttemptsLeft at the current height, 0 when out or done there.
 	AttemptsLeft int
 }
@@ -80,8 +84,9 @@ func mm(m float64) int64 {
 // standing reads one competitor at the current height (0 when none).
 func standing(c Competitor, currentM float64) Standing {
 	s := c.Series
-	st := Standing{Name: c.Name, BestM: s.BestM, AttemptsAtBest: s.AttemptsAtBest, FailuresToBest: s.FailuresToBest, Out: s.Out}
-	if !s.Out && currentM > 0 {
+	st := Standing{Name: c.Name, BestM: s.BestM, AttemptsAtBest: s.AttemptsAtBest, FailuresToBest: s.FailuresToBest,
+		Out: s.Out || c.Retired, Retired: c.Retired}
+	if !st.Out && currentM > 0 {
 		st.AttemptsLeft = s.Remaining
 		if mm(s.LastBarM) > mm(currentM) || mm(s.LastBarM) == mm(currentM) && s.DoneAtLast {
 			st.AttemptsLeft = 0 // done at this height
