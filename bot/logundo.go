@@ -181,6 +181,10 @@ func (c *call) undoInTx(tx Tx, confirm bool) (Reply, error) {
 			r, err = c.undoTeam(tx, e, when)
 			break
 		}
+		switch e.Action {
+		case auditMeetAdd, auditMeetLog, auditMeetRetire:
+			return Reply{}, conflictErr("meet undo", "your last change (%s, %s) is on the meet sheet: meet undo takes the sheet's last entry off. Nothing was changed", e.Action, when)
+		}
 		if e.After == "" && e.Before != "" || e.Action == "forget" {
 			return Reply{}, conflictErr("audit", "your last change (%s %s, %s) cannot be undone: what it deleted is gone (a backup holds it); nothing was changed", e.Action, clip(e.Subject, 40), when)
 		}

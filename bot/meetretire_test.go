@@ -89,3 +89,17 @@ func TestMeetRetireSquad(t *testing.T) {
 	te.must("meet close")
 	contains(t, te.must("history Mira"), "1.60 o, 1.65 xo")
 }
+
+// undo after a sheet entry points to meet undo and changes nothing.
+func TestUndoAfterSheetEntryPointsToMeetUndo(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("meet open Club-night")
+	te.must("meet add Bea guest")
+	te.must("meet log Bea 1.60 xo")
+	r := te.run("undo")
+	if r.Kind != bot.KindConflict {
+		t.Fatalf("undo after meet log: %v\n%s", r.Kind, plain(r))
+	}
+	contains(t, r, "meet undo takes the sheet's last entry off")
+	contains(t, te.must("standings"), "Bea")
+}
