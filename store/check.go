@@ -26,7 +26,9 @@ const maxProblems = 20
 // running lathmark) and checks it as (*DB).Check does.
 func Check(path string) (err error) {
 	defer catchFault(&err, "store: check "+path, debug.SetPanicOnFault(true))
-	db, err := Open(path, Options{ReadOnly: true})
+	// Without the page walk at open: db.Check runs it and lists every
+	// problem instead of refusing at the first.
+	db, err := Open(path, Options{ReadOnly: true, OpenWalkMaxBytes: -1})
 	if err != nil {
 		return err
 	}
