@@ -50,7 +50,8 @@ func Check(path string) (err error) {
 //     athlete, time and Seq;
 //   - every line's key matches its user and time, its athlete (if any)
 //     exists, and its number (if any) is no other line's and at most the
-//     lines bucket's sequence; every user's key is its ID and its linked athlete exists;
+//     lines bucket's sequence; every user's key is its ID and its linked
+//     athlete exists;
 //   - seen and digest values are 8-byte times; audit keys match their times;
 //   - inbox entries decode and the inbox's count matches them.
 //

@@ -18,8 +18,9 @@ const DefaultOpenWalkMaxBytes = 64 << 20
 
 // walkAtOpen walks the page tree of the data file at path (see walkPages)
 // when its pages in use are at most limit bytes (limit < 0: never), and
-// refuses the file if the walk finds a damaged page. It runs while Open holds the file
-// lock, so no other process writes meanwhile, and before anything writes.
+// refuses the file if the walk finds a damaged page. It runs while Open
+// holds the file lock, so no other process writes meanwhile, and before
+// anything writes.
 //
 // Why refuse rather than open the file marked as damaged: bbolt keeps no
 // page checksums, so a damaged branch page can send a range scan to the

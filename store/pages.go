@@ -14,10 +14,10 @@ import (
 
 // This file reads bbolt's page structure with plain file reads, never the
 // memory map, so that nothing it meets can fault the process. The quick
-// check at open uses the meta pages; Check walks every page reachable from
-// the root before bbolt's own check (which runs on a goroutine of its own,
-// where a fault cannot be caught) is allowed to read the same pages through
-// the map.
+// check at open uses the meta pages; the walk at open (walkAtOpen) and
+// Check walk every page reachable from the root, Check before bbolt's own
+// check (which runs on a goroutine of its own, where a fault cannot be
+// caught) is allowed to read the same pages through the map.
 //
 // Layout of bbolt v1.5 (go.etcd.io/bbolt/internal/common, host byte order):
 //
@@ -170,7 +170,8 @@ type pageWalk struct {
 // walkPages checks, with plain reads, every page reachable from the newer
 // meta page: ids below the high water mark, no page reached twice, branch
 // and leaf pages only, every element, key and value inside its page, keys
-// in order across each bucket's tree, a freelist whose ids are in range. It reports what it finds in p.
+// in order across each bucket's tree, a freelist whose ids are in range.
+// It reports what it finds in p.
 func walkPages(f io.ReaderAt, size int64, p *problemList) {
 	m, err := quickCheck(f, size)
 	if err != nil {

@@ -74,9 +74,9 @@ type Options struct {
 	// InitialMmapSize is the memory map reserved at open, in bytes; 0 means
 	// DefaultInitialMmapSize. (On Windows bbolt grows the file to it.)
 	InitialMmapSize int
-	// OpenWalkMaxBytes is the largest file whose page tree Open walks
-	// before using it (see walkAtOpen); 0 means DefaultOpenWalkMaxBytes,
-	// negative never.
+	// OpenWalkMaxBytes is the most pages in use, in bytes, of a file whose
+	// page tree Open walks before using it (see walkAtOpen); 0 means
+	// DefaultOpenWalkMaxBytes, negative never.
 	OpenWalkMaxBytes int64
 	// Logger receives the warning when an existing data file was readable
 	// by others and Open tightened it to 0600, and the first damage a
