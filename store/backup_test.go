@@ -505,6 +505,23 @@ func TestCheckFindsProblems(t *testing.T) {
 			return tx.Bucket([]byte("meta")).Delete([]byte("schema"))
 		}, "schema version 0"},
 		{"bucket missing", func(tx *bolt.Tx) error { return tx.DeleteBucket([]byte("seen")) }, "bucket seen missing"},
+		{"two lines share a number", func(tx *bolt.Tx) error {
+			b := tx.Bucket([]byte("lines"))
+			if err := b.SetSequence(4); err != nil {
+				return err
+			}
+			for i, by := range []string{"U1", "U2"} {
+				k := append([]byte(by+"\x00"), attemptKey(0, base, uint32(i))[8:]...)
+				if err := putSealed(tx, "lines", k, `{"id":"L","by":"`+by+`","time":"2025-03-03T17:30:00Z","no":3}`); err != nil {
+					return err
+				}
+			}
+			return nil
+		}, "share number #3"},
+		{"line number never given", func(tx *bolt.Tx) error {
+			k := append([]byte("U1\x00"), attemptKey(0, base, 0)[8:]...)
+			return putSealed(tx, "lines", k, `{"id":"L","by":"U1","time":"2025-03-03T17:30:00Z","no":9}`)
+		}, "above the last given"},
 		{"audit key malformed", func(tx *bolt.Tx) error {
 			return putSealed(tx, "audit", []byte("short"), `{}`)
 		}, "audit key"},

@@ -26,7 +26,9 @@ const maxProblems = 20
 // running lathmark) and checks it as (*DB).Check does.
 func Check(path string) (err error) {
 	defer catchFault(&err, "store: check "+path, debug.SetPanicOnFault(true))
-	db, err := Open(path, Options{ReadOnly: true})
+	// Without the page walk at open: db.Check runs it and lists every
+	// problem instead of refusing at the first.
+	db, err := Open(path, Options{ReadOnly: true, OpenWalkMaxBytes: -1})
 	if err != nil {
 		return err
 	}
@@ -46,8 +48,10 @@ func Check(path string) (err error) {
 //     profile whose folded name is that key;
 //   - every attempt belongs to an existing athlete and its key matches its
 //     athlete, time and Seq;
-//   - every line's key matches its user and time, and its athlete (if any)
-//     exists; every user's key is its ID and its linked athlete exists;
+//   - every line's key matches its user and time, its athlete (if any)
+//     exists, and its number (if any) is no other line's and at most the
+//     lines bucket's sequence; every user's key is its ID and its linked
+//     athlete exists;
 //   - seen and digest values are 8-byte times; audit keys match their times;
 //   - inbox entries decode and the inbox's count matches them.
 //
@@ -218,6 +222,8 @@ func invariants(tx *bolt.Tx, p *problemList) {
 		return nil
 	})
 
+	lineNumbers := map[uint64]string{}
+	lastLine := b[bucketLines].Sequence()
 	_ = b[bucketLines].ForEach(func(k, v []byte) error {
 		if len(k) <= lineTail || k[len(k)-lineTail] != 0 {
 			p.add("lines key %q is malformed", k)
@@ -235,6 +241,15 @@ func invariants(tx *bolt.Tx, p *problemList) {
 		}
 		if l.AthleteID != 0 && !athleteIDs[l.AthleteID] {
 			p.add("line %q: athlete %d has no profile", k, l.AthleteID)
+		}
+		if l.Number != 0 {
+			if other, dup := lineNumbers[l.Number]; dup {
+				p.add("lines %q and %q share number #%d", other, k, l.Number)
+			}
+			lineNumbers[l.Number] = string(k)
+			if l.Number > lastLine {
+				p.add("line %q: number #%d above the last given, #%d", k, l.Number, lastLine)
+			}
 		}
 		return nil
 	})

@@ -8,6 +8,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"sort"
 	"strconv"
 	"strings"
 	"testing"
@@ -72,6 +73,8 @@ type corruptStats struct {
 	wrongUnseenByCheck        int // ... of those, copies check passed
 	missing                   int // copies where a read succeeded but records it should have found were absent
 	missingUnseenByCheck      int
+	readClean                 int // copies that opened and where every read succeeded
+	silentShort               int // ... of those, copies whose records read are not the records written
 	botDamage, botOther       int // bot replies saying the file is damaged; other changed replies
 	caught                    int // copies where a read faulted or bbolt panicked, caught by the guard
 }
@@ -85,7 +88,11 @@ type corruptStats struct {
 // fixed, so a failure repeats. It asserts that nothing dies (this process
 // would: the guards must catch every fault), that every failed read is
 // ErrDamaged, and that no read returns a value other than the one written
-// while Check passes the file. The expected values are the undamaged file's.
+// while Check passes the file, and that a copy which opens and reads
+// without any error reads exactly the set of records written: none left
+// out in silence (a damaged branch page once made a range scan skip sound
+// records; the page walk at open now refuses such a file). The expected
+// values are the undamaged file's.
 func TestCorruptCopies(t *testing.T) {
 	start := time.Now()
 	dir := t.TempDir()
@@ -146,15 +153,19 @@ func TestCorruptCopies(t *testing.T) {
 	}
 	t.Logf("corruption summary: %d copies (%d with %d bits flipped, %d cut short) of a %d-byte file in %s: "+
 		"check found damage in %d, %d refused at open, reads reported damage in %d, %d read exactly as written; "+
-		"a read gave another value than written in %d (check passed %d of those); records absent from a read that succeeded in %d (check passed %d); the bot said the file is damaged in %d of %d replies, other changed replies %d; a fault or a panic inside bbolt was caught by the guard in %d; no run died",
+		"a read gave another value than written in %d (check passed %d of those); records absent from a read that succeeded in %d (check passed %d); "+
+		"%d opened and read without an error, %d of them with other records than written; the bot said the file is damaged in %d of %d replies, other changed replies %d; a fault or a panic inside bbolt was caught by the guard in %d; no run died",
 		st.copies, st.copies-st.truncated, st.bits, st.truncated, used, time.Since(start).Round(time.Millisecond),
 		st.checkFound, st.refusedAtOpen, st.readDamage, st.unchanged,
-		st.wrongValue, st.wrongUnseenByCheck, st.missing, st.missingUnseenByCheck, st.botDamage, len(botCommands)*(st.copies-st.refusedAtOpen), st.botOther, st.caught)
+		st.wrongValue, st.wrongUnseenByCheck, st.missing, st.missingUnseenByCheck, st.readClean, st.silentShort, st.botDamage, len(botCommands)*(st.copies-st.refusedAtOpen), st.botOther, st.caught)
 	if st.wrongValue > 0 {
 		t.Errorf("%d copies returned a damaged record as another value", st.wrongValue)
 	}
 	if st.missingUnseenByCheck > 0 {
 		t.Errorf("%d copies lost records that check did not notice", st.missingUnseenByCheck)
+	}
+	if st.silentShort > 0 {
+		t.Errorf("%d of %d copies that opened and read without an error read fewer (or other) records than were written", st.silentShort, st.readClean)
 	}
 }
 
@@ -220,6 +231,14 @@ func corruptOne(t *testing.T, path, what string, wantDump storeDump, wantBot []s
 			missing = true
 		}
 	}
+	// A copy read without any error must hold exactly the records written.
+	if len(errs) == 0 {
+		st.readClean++
+		if diff := recordSetDiff(want, got); diff != "" {
+			st.silentShort++
+			t.Errorf("%s: opened and read without an error, but %s (check found damage: %v)", what, diff, found)
+		}
+	}
 	// The bot answers each command as before, or says the file is damaged;
 	// never "something went wrong". (Where records went missing without a
 	// read error its replies may differ; check reports those files.)
@@ -250,3 +269,31 @@ func corruptOne(t *testing.T, path, what string, wantDump storeDump, wantBot []s
 		st.unchanged++
 	}
 }
+
+// recordSetDiff compares the records read (got) with those written (want)
+// by name and value, and says what differs ("" if nothing).
+func recordSetDiff(want, got map[string]string) string {
+	var absent, other []string
+	for k, v := range want {
+		switch g, ok := got[k]; {
+		case !ok:
+			absent = append(absent, k)
+		case g != v:
+			other = append(other, k)
+		}
+	}
+	for k := range got {
+		if _, ok := want[k]; !ok {
+			other = append(other, k)
+		}
+	}
+	if len(absent) == 0 && len(other) == 0 {
+		return ""
+	}
+	sort.Strings(absent)
+	sort.Strings(other)
+	return fmt.Sprintf("%d of %d records absent (first: %v) and %d read otherwise (first: %v)", len(absent), len(want), first(absent), len(other), first(other))
+}
+
+// first is the first few names of a list, for a message.
+func first(names []string) []string { return names[:min(len(names), 3)] }

@@ -370,7 +370,8 @@ func TestMovedRecordIsDamage(t *testing.T) {
 }
 
 // A version 1 file (values unsealed, schema version unsealed) opens, is
-// sealed by the migration, reads back what it held, and passes its check;
+// sealed by the migration, has its line numbered, reads back what it held,
+// and passes its check;
 // read-only it is refused as needing the migration.
 func TestVersion1FileMigrates(t *testing.T) {
 	id8 := func(id uint64) []byte { return binary.BigEndian.AppendUint64(nil, id) }
@@ -381,6 +382,7 @@ func TestVersion1FileMigrates(t *testing.T) {
 	path := tempPath(t)
 	athlete := `{"id":1,"name":"Nora","stature_m":1.74,"created":"2025-03-03T17:30:00Z"}`
 	attempt := `{"athlete":1,"time":"2025-03-03T17:30:00Z","seq":0,"bar_m":1.62,"outcome":"o","n":1}`
+	line := `{"id":"m1","by":"U1","time":"2025-03-03T17:30:00Z","athlete":1,"attempts":[{"athlete":1,"time":"2025-03-03T17:30:00Z","seq":0}],"text":"log Nora 1.62 o"}`
 	rawFile(t, path, func(tx *bolt.Tx) error {
 		if err := makeV1(tx); err != nil {
 			return err
@@ -396,6 +398,7 @@ func TestVersion1FileMigrates(t *testing.T) {
 			{"attempts", string(attemptKey(1, base, 0)), attempt},
 			{"users", "U1", `{"id":"U1","athlete":1}`},
 			{"seen", "m1", string(binary.BigEndian.AppendUint64(nil, uint64(base.UnixNano())))},
+			{"lines", "U1\x00" + string(attemptKey(0, base, 0)[8:]), line},
 		}
 		for _, p := range puts {
 			if err := tx.Bucket([]byte(p.b)).Put([]byte(p.k), []byte(p.v)); err != nil {
@@ -423,8 +426,8 @@ func TestVersion1FileMigrates(t *testing.T) {
 		n := 0
 		if err := tx.Attempts(1, base, base.Add(time.Second), func(x record.Attempt) error {
 			n++
-			if x.BarM != 1.62 {
-				t.Errorf("attempt %+v", x)
+			if x.BarM != 1.62 || x.LineNo != 1 {
+				t.Errorf("attempt %+v, want bar 1.62 on line #1", x)
 			}
 			return nil
 		}); err != nil || n != 1 {
@@ -432,6 +435,10 @@ func TestVersion1FileMigrates(t *testing.T) {
 		}
 		if seen, err := tx.Seen("m1"); err != nil || !seen {
 			t.Errorf("seen %v %v", seen, err)
+		}
+		// Lines are numbered by the version 3 step that follows the seal.
+		if l, ok, err := tx.LineByNumber(1); err != nil || !ok || l.ID != "m1" {
+			t.Errorf("line #1: %+v %v %v, want m1", l, ok, err)
 		}
 		return nil
 	})

@@ -1,6 +1,7 @@
 package store
 
 import (
+	"bytes"
 	"encoding/binary"
 	"errors"
 	"fmt"
@@ -13,10 +14,10 @@ import (
 
 // This file reads bbolt's page structure with plain file reads, never the
 // memory map, so that nothing it meets can fault the process. The quick
-// check at open uses the meta pages; Check walks every page reachable from
-// the root before bbolt's own check (which runs on a goroutine of its own,
-// where a fault cannot be caught) is allowed to read the same pages through
-// the map.
+// check at open uses the meta pages; the walk at open (walkAtOpen) and
+// Check walk every page reachable from the root, Check before bbolt's own
+// check (which runs on a goroutine of its own, where a fault cannot be
+// caught) is allowed to read the same pages through the map.
 //
 // Layout of bbolt v1.5 (go.etcd.io/bbolt/internal/common, host byte order):
 //
@@ -168,8 +169,9 @@ type pageWalk struct {
 
 // walkPages checks, with plain reads, every page reachable from the newer
 // meta page: ids below the high water mark, no page reached twice, branch
-// and leaf pages only, every element, key and value inside its page, a
-// freelist whose ids are in range. It reports what it finds in p.
+// and leaf pages only, every element, key and value inside its page, keys
+// in order across each bucket's tree, a freelist whose ids are in range.
+// It reports what it finds in p.
 func walkPages(f io.ReaderAt, size int64, p *problemList) {
 	m, err := quickCheck(f, size)
 	if err != nil {
@@ -178,42 +180,53 @@ func walkPages(f io.ReaderAt, size int64, p *problemList) {
 	}
 	w := &pageWalk{f: f, meta: m, seen: map[uint64]bool{}, p: p}
 	w.freelist()
-	w.tree(m.root, 0)
+	w.tree(m.root, 0, nil, nil)
 }
 
 // read returns page id and its overflow pages, or nil after reporting why
-// it cannot.
-func (w *pageWalk) read(id uint64, parent string) []byte {
+// it cannot. parent says where the page id came from (for a message): the
+// text given, or the tree depth when it is "".
+func (w *pageWalk) read(id uint64, parent string, depth int) []byte {
+	from := func() string {
+		if parent != "" {
+			return parent
+		}
+		return fmt.Sprintf("depth %d", depth)
+	}
 	ps := uint64(w.meta.pageSize)
 	if id < 2 || id >= w.meta.pgid {
-		w.p.add("pages: %s points to page %d, outside 2..%d", parent, id, w.meta.pgid)
+		w.p.add("pages: %s points to page %d, outside 2..%d", from(), id, w.meta.pgid)
 		return nil
 	}
-	head := make([]byte, pageHeaderLen)
-	if _, err := w.f.ReadAt(head, int64(id*ps)); err != nil {
+	// One read of the first page (its header says how many follow), and a
+	// second only for a page with overflow pages.
+	buf := make([]byte, ps)
+	if _, err := w.f.ReadAt(buf, int64(id*ps)); err != nil {
 		w.p.add("pages: page %d: %v", id, err)
 		return nil
 	}
-	if got := hostOrder.Uint64(head); got != id {
-		w.p.add("pages: page %d (from %s) says it is page %d", id, parent, got)
+	if got := hostOrder.Uint64(buf); got != id {
+		w.p.add("pages: page %d (from %s) says it is page %d", id, from(), got)
 		return nil
 	}
-	overflow := uint64(hostOrder.Uint32(head[12:]))
+	overflow := uint64(hostOrder.Uint32(buf[12:]))
 	if id+overflow >= w.meta.pgid {
 		w.p.add("pages: page %d: %d overflow pages run past page %d", id, overflow, w.meta.pgid)
 		return nil
 	}
 	for i := id; i <= id+overflow; i++ {
 		if w.seen[i] {
-			w.p.add("pages: page %d reached twice (from %s)", i, parent)
+			w.p.add("pages: page %d reached twice (from %s)", i, from())
 			return nil
 		}
 		w.seen[i] = true
 	}
-	buf := make([]byte, (overflow+1)*ps)
-	if _, err := w.f.ReadAt(buf, int64(id*ps)); err != nil {
-		w.p.add("pages: page %d: %v", id, err)
-		return nil
+	if overflow > 0 {
+		buf = append(buf, make([]byte, overflow*ps)...)
+		if _, err := w.f.ReadAt(buf[ps:], int64((id+1)*ps)); err != nil {
+			w.p.add("pages: page %d: %v", id, err)
+			return nil
+		}
 	}
 	w.reached++
 	return buf
@@ -223,7 +236,7 @@ func (w *pageWalk) freelist() {
 	if w.meta.freelist == noFreelist {
 		return
 	}
-	buf := w.read(w.meta.freelist, "the meta page")
+	buf := w.read(w.meta.freelist, "the meta page", 0)
 	if buf == nil {
 		return
 	}
@@ -247,55 +260,103 @@ func (w *pageWalk) freelist() {
 	}
 }
 
-// tree walks the b-tree rooted at page id.
-func (w *pageWalk) tree(id uint64, depth int) {
+// tree walks the b-tree rooted at page id, whose keys must lie in
+// [lo, hi) (nil: unbounded), and returns the last key found under it (nil
+// if none).
+func (w *pageWalk) tree(id uint64, depth int, lo, hi []byte) []byte {
 	if depth > maxTreeDepth {
 		w.p.add("pages: tree deeper than %d at page %d", maxTreeDepth, id)
-		return
+		return nil
 	}
-	buf := w.read(id, fmt.Sprintf("depth %d", depth))
-	if buf != nil {
-		w.page(buf, id, depth)
+	buf := w.read(id, "", depth)
+	if buf == nil {
+		return nil
 	}
+	return w.page(buf, id, depth, lo, hi)
 }
 
 // page checks one branch or leaf page held in buf (also an inline bucket's
-// page, with id 0).
-func (w *pageWalk) page(buf []byte, id uint64, depth int) {
+// page, with id 0), whose keys must lie in [lo, hi), and returns its last
+// key (for a branch page, the last key under it).
+//
+// Key order is checked as bbolt's own check does (tx_check.go,
+// recursivelyCheckPageKeyOrder): keys rise strictly within a page, a
+// branch element's key is above every key under the element before it, and
+// every key under element i lies below element i+1's key. bbolt keeps no
+// page checksums, so a damaged key on a branch page would otherwise pass
+// here and send a range scan to the wrong page, leaving sound records out
+// with no error.
+func (w *pageWalk) page(buf []byte, id uint64, depth int, lo, hi []byte) []byte {
 	if len(buf) < pageHeaderLen {
 		w.p.add("pages: page %d: %d bytes, shorter than its header", id, len(buf))
-		return
+		return nil
 	}
 	flags, count := hostOrder.Uint16(buf[8:]), int(hostOrder.Uint16(buf[10:]))
+	if flags != flagBranch && flags != flagLeaf {
+		w.p.add("pages: page %d has flags %#x, want a branch or leaf page", id, flags)
+		return nil
+	}
 	if pageHeaderLen+count*elemLen > len(buf) {
 		w.p.add("pages: page %d counts %d elements, more than it holds", id, count)
-		return
+		return nil
+	}
+	kind, at := "branch", 0
+	if flags == flagLeaf {
+		kind, at = "leaf", 4 // leaf elements start with their flags
 	}
 	inside := func(e, pos, n int) bool { return pos >= 0 && n >= 0 && e+pos+n <= len(buf) && e+pos >= e }
+	keys := make([][]byte, count)
 	for i := range count {
 		e := pageHeaderLen + i*elemLen
-		switch flags {
-		case flagBranch:
-			pos, ksize := int(hostOrder.Uint32(buf[e:])), int(hostOrder.Uint32(buf[e+4:]))
-			if !inside(e, pos, ksize) {
-				w.p.add("pages: branch page %d element %d: key outside the page", id, i)
-				return
-			}
-			w.tree(hostOrder.Uint64(buf[e+8:]), depth+1)
-		case flagLeaf:
-			lf, pos := hostOrder.Uint32(buf[e:]), int(hostOrder.Uint32(buf[e+4:]))
-			ksize, vsize := int(hostOrder.Uint32(buf[e+8:])), int(hostOrder.Uint32(buf[e+12:]))
-			if !inside(e, pos, ksize) || !inside(e, pos+ksize, vsize) {
-				w.p.add("pages: leaf page %d element %d: key or value outside the page", id, i)
-				return
-			}
-			if lf&leafBucketFlag != 0 {
-				w.bucket(buf[e+pos+ksize:e+pos+ksize+vsize], id, depth)
-			}
-		default:
-			w.p.add("pages: page %d has flags %#x, want a branch or leaf page", id, flags)
-			return
+		pos, ksize := int(hostOrder.Uint32(buf[e+at:])), int(hostOrder.Uint32(buf[e+at+4:]))
+		if !inside(e, pos, ksize) {
+			w.p.add("pages: %s page %d element %d: key outside the page", kind, id, i)
+			return nil
 		}
+		keys[i] = buf[e+pos : e+pos+ksize]
+		if flags == flagLeaf && !inside(e, pos+ksize, int(hostOrder.Uint32(buf[e+12:]))) {
+			w.p.add("pages: leaf page %d element %d: value outside the page", id, i)
+			return nil
+		}
+	}
+	prev := lo
+	for i, k := range keys {
+		w.keyInOrder(kind, id, i, k, prev, hi)
+		e := pageHeaderLen + i*elemLen
+		if flags == flagLeaf {
+			prev = k
+			if hostOrder.Uint32(buf[e:])&leafBucketFlag != 0 {
+				pos, vsize := int(hostOrder.Uint32(buf[e+4:])), int(hostOrder.Uint32(buf[e+12:]))
+				w.bucket(buf[e+pos+len(k):e+pos+len(k)+vsize], id, depth)
+			}
+			continue
+		}
+		next := hi
+		if i+1 < len(keys) {
+			next = keys[i+1]
+		}
+		if last := w.tree(hostOrder.Uint64(buf[e+8:]), depth+1, k, next); last != nil {
+			prev = last
+		} else {
+			prev = k
+		}
+	}
+	return prev
+}
+
+// keyInOrder reports element i's key k on a page if it is not above prev
+// (at or above it for the first element, which may equal the key that
+// leads to its page) or not below hi.
+func (w *pageWalk) keyInOrder(kind string, id uint64, i int, k, prev, hi []byte) {
+	switch c := bytes.Compare(prev, k); {
+	case prev == nil:
+	case i == 0 && c > 0:
+		w.p.add("pages: %s page %d: first key %x below the key %x that leads to it", kind, id, k, prev)
+	case i > 0 && c >= 0:
+		w.p.add("pages: %s page %d element %d: key %x not above the one before it, %x", kind, id, i, k, prev)
+	}
+	if hi != nil && bytes.Compare(k, hi) >= 0 {
+		w.p.add("pages: %s page %d element %d: key %x not below %x, the next key of its parent", kind, id, i, k, hi)
 	}
 }
 
@@ -306,7 +367,7 @@ func (w *pageWalk) bucket(v []byte, parent uint64, depth int) {
 		return
 	}
 	if root := hostOrder.Uint64(v); root != 0 {
-		w.tree(root, depth+1)
+		w.tree(root, depth+1, nil, nil)
 		return
 	}
 	inline := v[bucketHeaderLen:]
@@ -315,6 +376,6 @@ func (w *pageWalk) bucket(v []byte, parent uint64, depth int) {
 		return
 	}
 	if len(inline) >= pageHeaderLen {
-		w.page(inline, 0, depth+1)
+		w.page(inline, 0, depth+1, nil, nil)
 	}
 }

@@ -30,7 +30,13 @@ import (
 // value above followed by the CRC-32C of key and value, 4 bytes BE. That
 // includes the schema version itself and the buckets created at open
 // (inbox, hints). Migrating from version 1 seals the values in place.
-const SchemaVersion uint64 = 2
+//
+// Version 3 keeps that layout and numbers every line: record.Line.Number
+// (#N in `history`, from the lines bucket's sequence) is non-zero, and each
+// attempt a line names carries it as LineNo. Migrating from version 2
+// numbers the lines stored before numbering, oldest first
+// (migrateNumberLinesV3).
+const SchemaVersion uint64 = 3
 
 // Bucket names.
 const (
@@ -71,6 +77,7 @@ func migrations() map[uint64]migration {
 	return map[uint64]migration{
 		0: {name: "create the version 1 buckets", run: migrateCreateV1},
 		1: {name: "seal every value with its checksum", run: migrateSealV2},
+		2: {name: "number the lines stored before lines were numbered", run: migrateNumberLinesV3},
 	}
 }
 

@@ -74,6 +74,10 @@ type Options struct {
 	// InitialMmapSize is the memory map reserved at open, in bytes; 0 means
 	// DefaultInitialMmapSize. (On Windows bbolt grows the file to it.)
 	InitialMmapSize int
+	// OpenWalkMaxBytes is the most pages in use, in bytes, of a file whose
+	// page tree Open walks before using it (see walkAtOpen); 0 means
+	// DefaultOpenWalkMaxBytes, negative never.
+	OpenWalkMaxBytes int64
 	// Logger receives the warning when an existing data file was readable
 	// by others and Open tightened it to 0600, and the first damage a
 	// transaction meets (see ErrDamaged); nil discards.
@@ -145,9 +149,12 @@ type DB struct {
 // Open opens the data file at path, creating it (mode 0600, parent
 // directories 0700) unless opts.ReadOnly. A read-write open brings the file
 // to SchemaVersion by running the pending migrations in one transaction and
-// refuses a file whose schema is newer than this code (ErrSchemaNewer). If
-// another process holds the file, Open gives up after opts.Timeout with a
-// *LockedError (errors.Is(err, ErrLocked)).
+// refuses a file whose schema is newer than this code (ErrSchemaNewer).
+// Every open refuses a damaged file (ErrDamaged): the quick check reads
+// the meta pages, and a file up to opts.OpenWalkMaxBytes has its whole
+// page tree walked (see walkAtOpen). If another process holds the file,
+// Open gives up after opts.Timeout with a *LockedError (errors.Is(err,
+// ErrLocked)).
 func Open(path string, opts Options) (*DB, error) {
 	return openWith(path, opts, migrations(), SchemaVersion)
 }
@@ -193,6 +200,16 @@ func openWith(path string, opts Options, ms map[uint64]migration, target uint64)
 		return nil, &LockedError{Path: path, Waited: timeout, err: err}
 	}
 	if err != nil {
+		return nil, fmt.Errorf("store: open %s: %w", path, err)
+	}
+	// The page walk: every page in use, with plain reads, under the lock
+	// and before anything is written (see walkAtOpen).
+	walkLimit := opts.OpenWalkMaxBytes
+	if walkLimit == 0 {
+		walkLimit = DefaultOpenWalkMaxBytes
+	}
+	if err := walkAtOpen(path, walkLimit); err != nil {
+		_ = bdb.Close()
 		return nil, fmt.Errorf("store: open %s: %w", path, err)
 	}
 	if opts.MaxBatchSize > 0 {
