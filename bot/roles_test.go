@@ -161,7 +161,9 @@ func TestRoleMatrix(t *testing.T) {
 		t.Fatalf("%d cases for %d commands", len(cases), len(f.e.Commands()))
 	}
 	runs, all := 0, 0
-	defer func() { t.Logf("%d of %d runs (%d lines x %d roles x channel/DM)", runs, all, len(cases), len(everyRole)) }()
+	defer func() {
+		t.Logf("%d of %d runs (%d lines x %d roles x channel/DM)", runs, all, len(cases), len(everyRole))
+	}()
 	for k, tt := range cases {
 		for ri, who := range everyRole {
 			for _, inChannel := range []bool{true, false} {
