@@ -462,17 +462,28 @@ func refuseRows(problems []string, extra ...string) *importRefusal {
 }
 
 func runImportCSV(c *call) (Reply, error) {
-	if len(c.args) == 0 && c.req.Upload != nil {
+	args := c.args
+	if c.importConfirmed() {
+		args = args[:len(args)-1]
+	}
+	if len(args) == 0 && c.req.Upload != nil {
 		return c.importUpload()
 	}
-	if len(c.args) == 0 {
+	if len(args) == 0 {
 		return Reply{}, usageErr("import csv /home/coach/attempts.csv", "give the path of a CSV file on the bot's computer")
 	}
 	if !c.req.Local {
 		return Reply{}, forbiddenErr("export csv", "import csv reads a file on the bot's own computer, so it works only in the bot's terminal (lathmark run there); from chat, send the CSV file itself to the bot in a direct message, or with the words import csv")
 	}
-	path := strings.Trim(joinRaw(c.args), `"'`)
+	path := strings.Trim(joinRaw(args), `"'`)
 	return c.importCSVFile(path, nil)
+}
+
+// importConfirmed reports whether the import command ends in confirm: rows
+// that need a second look (plausibility) are then imported.
+func (c *call) importConfirmed() bool {
+	n := len(c.args)
+	return n > 0 && c.args[n-1].Lower == "confirm"
 }
 
 // ImportCSVFile imports attempts from a CSV file on this computer as the
@@ -504,6 +515,9 @@ func (e *Engine) ImportCSVFile(ctx context.Context, req Request, path string, pr
 		}
 	}
 	c := &call{ctx: ctx, e: e, req: req, cmd: cmd, now: req.Time}
+	if n := len(path) - len(" confirm"); n > 0 && strings.EqualFold(path[n:], " confirm") {
+		path, c.args = strings.Trim(strings.TrimSpace(path[:n]), `"'`), []token{{Raw: "confirm", Lower: "confirm"}}
+	}
 	if err := c.loadSpeaker(); err != nil {
 		return e.refusal(req, err)
 	}
@@ -651,6 +665,14 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 		return Reply{}, err
 	} else if len(probs) > 0 {
 		return Reply{}, refuseRows(probs, "A meet series must keep the competition rules (World Athletics TR 26): correct the rows, or mark practice rows meet=false.")
+	}
+	if probs := importPlausibility(rows, athletes, team); len(probs) > 0 && !c.importConfirmed() {
+		ir := refuseRows(probs, "These rows need a second look, as a log line would: correct them, or send the import again ending in confirm.")
+		ir.example = "import csv confirm"
+		if typed := strings.TrimSpace(c.req.Text); strings.HasPrefix(strings.ToLower(typed), "import csv") {
+			ir.example = typed + " confirm"
+		}
+		return Reply{}, ir
 	}
 	no, err := tx.NextLineNumber()
 	if err != nil {

@@ -344,3 +344,39 @@ func TestUndoImportOfTwoSessionsAsksConfirm(t *testing.T) {
 		t.Errorf("%d attempts after undo confirm, want 0", n)
 	}
 }
+
+// An import is checked against the athlete as a log line is (issue 15's
+// plausibility: a bar more than 15 cm over the personal best, a clearance
+// above the world record, 2.10 m for women, from memory): such rows are
+// refused by row number, nothing is stored, and the same import ending in
+// confirm stores them.
+func TestImportPlausibilityNeedsConfirm(t *testing.T) {
+	te := newTestEngine(t)
+	logAddAthlete(t, te.DB, logMira()) // PB 1.81
+	csv := "athlete,time,bar_m,outcome,meet,message_id\n" +
+		"Mira,2026-01-05T17:00:00Z,1.70,o,false,a\n" +
+		"Mira,2026-01-05T17:01:00Z,2.40,o,false,a\n"
+	path := filepath.Join(t.TempDir(), "high.csv")
+	if err := os.WriteFile(path, []byte(csv), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	r := te.E.ImportCSVFile(context.Background(), bot.Request{UserID: "U_HEAD", Time: te.now, MessageID: "imp-high"}, path, nil)
+	if r.OK() {
+		t.Fatalf("a 2.40 m clearance for a 1.81 m athlete was imported without confirm:\n%s", plain(r))
+	}
+	contains(t, r, "row 3:", "above Mira's personal best", "above the world record 2.10 m", "confirm")
+	if strings.Contains(plain(r), "row 2:") {
+		t.Errorf("the plausible row 2 is named:\n%s", plain(r))
+	}
+	if n := len(logAttempts(t, te.DB, "Mira")); n != 0 {
+		t.Fatalf("%d attempts stored by a refused import", n)
+	}
+	te.advance(time.Minute)
+	r = te.E.ImportCSVFile(context.Background(), bot.Request{UserID: "U_HEAD", Time: te.now, MessageID: "imp-high-2"}, path+" confirm", nil)
+	if !r.OK() {
+		t.Fatalf("import ... confirm refused:\n%s", plain(r))
+	}
+	if n := len(logAttempts(t, te.DB, "Mira")); n != 2 {
+		t.Errorf("%d attempts after import ... confirm, want 2", n)
+	}
+}

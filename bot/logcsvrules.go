@@ -76,3 +76,17 @@ func importSeriesProblems(tx Tx, rows []csvRow, athletes map[uint64]record.Athle
 func sameAttemptKey(a record.Attempt) string {
 	return fmt.Sprintf("%d/%d/%d/%c", a.AthleteID, a.Time.UnixNano(), int64(math.Round(a.BarM*1000)), a.Outcome)
 }
+
+// importPlausibility checks each row against its athlete as a log line is
+// checked (plausibility: a bar far above the personal best, a clearance
+// above the world record, a measured peak against the measured vz) and
+// names each row that needs confirm by its row number.
+func importPlausibility(rows []csvRow, athletes map[uint64]record.Athlete, team record.Team) []string {
+	var problems []string
+	for _, r := range rows {
+		if why := plausibility(athletes[r.a.AthleteID], []record.Attempt{r.a}, team); len(why) > 0 {
+			problems = append(problems, fmt.Sprintf("row %d: %s", r.row, whyText(why)))
+		}
+	}
+	return problems
+}
