@@ -134,18 +134,8 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 	day := localDay(at, loc)
 	// The day's attempts: those up to the session's time come before the
 	// line (a line logged for an earlier hour goes before later ones).
-	var today, sameKind, later []record.Attempt
-	if err := tx.Attempts(ath.ID, day, day.AddDate(0, 0, 1), func(a record.Attempt) error {
-		if a.Time.After(at) {
-			later = append(later, a)
-			return nil
-		}
-		today = append(today, a)
-		if a.Meet == ln.Meet {
-			sameKind = append(sameKind, a)
-		}
-		return nil
-	}); err != nil {
+	today, sameKind, later, err := dayAround(tx, ath.ID, day, at, ln.Meet, nil)
+	if err != nil {
 		return Reply{}, err
 	}
 
@@ -155,18 +145,7 @@ func (c *call) logInTx(tx Tx, ln logLine) (Reply, error) {
 
 	// Checks that ask for confirm: the competition rules at a meet, then
 	// what is implausible for this athlete.
-	var why []string
-	var breach *series.Breach
-	var state series.State
-	if ln.Meet {
-		breach, _, state = meetBreach(meetStateOf(today), add)
-		if breach != nil {
-			why = append(why, breachReason(breach, ath.Name, imp))
-		} else if s := laterBreach(state, later, ath.Name, imp); s != "" {
-			why = append(why, s)
-		}
-	}
-	why = append(why, plausibility(ath, add, team)...)
+	why, breach, state := lineChecks(ath, add, today, later, ln.Meet, team)
 	if len(why) > 0 && !ln.Confirm {
 		return Reply{}, conflictErr(typed+" confirm", "%s; nothing was logged (if it is right, add confirm).", whyText(why))
 	}

@@ -285,40 +285,18 @@ func (c *call) fixInTx(tx Tx, n uint64, rest []token) (Reply, error) {
 		oldKeys[k] = true
 	}
 	day := localDay(at, loc)
-	var today, sameKind, later []record.Attempt
-	if err := tx.Attempts(ath.ID, day, day.AddDate(0, 0, 1), func(a record.Attempt) error {
+	today, sameKind, later, err := dayAround(tx, ath.ID, day, at, ln.Meet, func(a record.Attempt) bool {
 		k := a.Key()
 		k.Time = k.Time.UTC()
-		if oldKeys[k] {
-			return nil
-		}
-		if a.Time.After(at) {
-			later = append(later, a)
-			return nil
-		}
-		today = append(today, a)
-		if a.Meet == ln.Meet {
-			sameKind = append(sameKind, a)
-		}
-		return nil
-	}); err != nil {
+		return oldKeys[k]
+	})
+	if err != nil {
 		return Reply{}, err
 	}
 	add := ln.attempts(ath.ID, at, old[0].LoggedBy, old[0].MessageID, l.ID)
 	numberAttempts(sameKind, add, ln.Meet)
 	typed := fmt.Sprintf("fix #%d %s", n, joinRaw(rest))
-	var why []string
-	var breach *series.Breach
-	if ln.Meet {
-		var state series.State
-		breach, _, state = meetBreach(meetStateOf(today), add)
-		if breach != nil {
-			why = append(why, breachReason(breach, ath.Name, imp))
-		} else if s := laterBreach(state, later, ath.Name, imp); s != "" {
-			why = append(why, s)
-		}
-	}
-	why = append(why, plausibility(ath, add, team)...)
+	why, breach, _ := lineChecks(ath, add, today, later, ln.Meet, team)
 	if len(why) > 0 && !ln.Confirm {
 		return Reply{}, conflictErr(typed+" confirm", "%s; nothing was changed (if it is right, add confirm).", whyText(why))
 	}

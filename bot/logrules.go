@@ -3,6 +3,7 @@ package bot
 import (
 	"fmt"
 	"strings"
+	"time"
 
 	"github.com/lathmark-team/lathmark/internal/mechanics"
 	"github.com/lathmark-team/lathmark/internal/record"
@@ -199,4 +200,43 @@ func whyText(why []string) string {
 		out += "; " + w
 	}
 	return out
+}
+
+// dayAround reads an athlete's attempts of day around the moment at of a
+// new or fixed line: today those up to at (they come before the line),
+// sameKind those of today of the line's kind (meet or practice), later
+// those after at. skip, if not nil, leaves attempts out (a fixed line's own).
+func dayAround(tx Tx, athleteID uint64, day, at time.Time, meet bool, skip func(record.Attempt) bool) (today, sameKind, later []record.Attempt, err error) {
+	err = tx.Attempts(athleteID, day, day.AddDate(0, 0, 1), func(a record.Attempt) error {
+		switch {
+		case skip != nil && skip(a):
+		case a.Time.After(at):
+			later = append(later, a)
+		default:
+			today = append(today, a)
+			if a.Meet == meet {
+				sameKind = append(sameKind, a)
+			}
+		}
+		return nil
+	})
+	return today, sameKind, later, err
+}
+
+// lineChecks lists what about a new or fixed line needs confirm: at a meet
+// the competition rules over the day's series (the line itself, then the
+// later lines it would make break a rule), then what is implausible for
+// the athlete. breach is the rule the line itself breaks (nil: none) and
+// state the series after its valid attempts.
+func lineChecks(ath record.Athlete, add, today, later []record.Attempt, meet bool, team record.Team) (why []string, breach *series.Breach, state series.State) {
+	imp := imperial(team)
+	if meet {
+		breach, _, state = meetBreach(meetStateOf(today), add)
+		if breach != nil {
+			why = append(why, breachReason(breach, ath.Name, imp))
+		} else if s := laterBreach(state, later, ath.Name, imp); s != "" {
+			why = append(why, s)
+		}
+	}
+	return append(why, plausibility(ath, add, team)...), breach, state
 }
