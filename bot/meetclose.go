@@ -16,15 +16,11 @@ func runMeetClose(c *call) (Reply, error) {
 	}
 	var r Reply
 	err := c.update(func(tx Tx) error {
-		team, loc, err := teamAndZone(tx)
+		sc, err := openSheetIn(tx)
 		if err != nil {
 			return err
 		}
-		imp := imperial(team)
-		s, err := mustOpenSheet(tx)
-		if err != nil {
-			return err
-		}
+		loc, imp, s := sc.loc, sc.imp, sc.s
 		hide, err := c.hiddenOnSheet(tx, s)
 		if err != nil {
 			return err

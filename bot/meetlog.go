@@ -64,15 +64,11 @@ func runMeetLog(c *call) (Reply, error) {
 	}
 	var r Reply
 	err = c.update(func(tx Tx) error {
-		team, _, err := teamAndZone(tx)
+		sc, err := openSheetIn(tx)
 		if err != nil {
 			return err
 		}
-		imp := imperial(team)
-		s, err := mustOpenSheet(tx)
-		if err != nil {
-			return err
-		}
+		imp, s := sc.imp, sc.s
 		comp, ok := s.Find(name)
 		if !ok {
 			return notFoundErr("meet add "+name, "%s is not on the sheet of %s; put them on it with meet add %s", name, s.Name, name)

@@ -28,15 +28,11 @@ func runMeetRetire(c *call) (Reply, error) {
 	name := c.args[0].Raw
 	var r Reply
 	err := c.update(func(tx Tx) error {
-		team, _, err := teamAndZone(tx)
+		sc, err := openSheetIn(tx)
 		if err != nil {
 			return err
 		}
-		imp := imperial(team)
-		s, err := mustOpenSheet(tx)
-		if err != nil {
-			return err
-		}
+		imp, s := sc.imp, sc.s
 		comp, ok := s.Find(name)
 		if !ok {
 			return notFoundErr(standingsExample, "%s is not on the sheet of %s; standings shows who is", name, s.Name)

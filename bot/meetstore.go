@@ -3,8 +3,10 @@ package bot
 import (
 	"fmt"
 	"sort"
+	"time"
 
 	"github.com/lathmark-team/lathmark/internal/meetsheet"
+	"github.com/lathmark-team/lathmark/internal/record"
 )
 
 // meetTx is a Tx that also keeps the team's meet sheet: one open sheet at
@@ -50,6 +52,30 @@ func mustOpenSheet(tx Tx) (meetsheet.Sheet, error) {
 		return s, notFoundErr(meetOpenExample, "no meet sheet is open; a coach opens one with meet open NAME [DATE] [steps ...]")
 	}
 	return s, nil
+}
+
+// sheetContext is what a meet command reads before it works on the open
+// sheet: the team, its time zone, whether it shows imperial units, and the
+// sheet.
+type sheetContext struct {
+	team record.Team
+	loc  *time.Location
+	imp  bool
+	s    meetsheet.Sheet
+}
+
+// openSheetIn reads the team, its zone and the open sheet, or refuses with
+// how to open one.
+func openSheetIn(tx Tx) (sheetContext, error) {
+	team, loc, err := teamAndZone(tx)
+	if err != nil {
+		return sheetContext{}, err
+	}
+	s, err := mustOpenSheet(tx)
+	if err != nil {
+		return sheetContext{}, err
+	}
+	return sheetContext{team: team, loc: loc, imp: imperial(team), s: s}, nil
 }
 
 // putSheet stores the open sheet.

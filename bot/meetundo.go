@@ -12,14 +12,11 @@ func runMeetUndo(c *call) (Reply, error) {
 	}
 	var r Reply
 	err := c.update(func(tx Tx) error {
-		team, _, err := teamAndZone(tx)
+		sc, err := openSheetIn(tx)
 		if err != nil {
 			return err
 		}
-		s, err := mustOpenSheet(tx)
-		if err != nil {
-			return err
-		}
+		s := sc.s
 		e, ok := s.Undo()
 		if !ok {
 			return notFoundErr(meetLogExample, "the sheet of %s has no entry to take off", s.Name)
@@ -38,7 +35,7 @@ func runMeetUndo(c *call) (Reply, error) {
 		if err != nil {
 			return err
 		}
-		imp := imperial(team)
+		imp := sc.imp
 		title := fmt.Sprintf("Taken off the sheet: %s %s.", e.Name, jumpsText(e.Jumps, imp))
 		if e.Retire {
 			title = fmt.Sprintf("Taken back: %s's retirement; %s is still in.", e.Name, e.Name)
