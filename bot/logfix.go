@@ -94,6 +94,9 @@ func (c *call) findLineNo(tx Tx, n uint64, verb string) (record.Line, record.Ath
 	if err != nil {
 		return l, record.Athlete{}, err
 	}
+	if rank(c.user.Role) < rank(record.RoleCoach) {
+		return c.ownLineNo(tx, l, ok, n, verb)
+	}
 	if !ok {
 		last, err := tx.LastLineNumber()
 		if err != nil {
@@ -119,6 +122,25 @@ func (c *call) findLineNo(tx Tx, n uint64, verb string) (record.Line, record.Ath
 	}
 	if err := c.mayActFor(ath); err != nil {
 		return l, ath, err
+	}
+	return l, ath, nil
+}
+
+// ownLineNo is findLineNo below coach: the speaker's own line, or one
+// refusal whatever else line #n is (missing, removed, another athlete's, an
+// import), so that trying numbers tells an athlete nothing about other
+// athletes' lines.
+func (c *call) ownLineNo(tx Tx, l record.Line, found bool, n uint64, verb string) (record.Line, record.Athlete, error) {
+	refuse := forbiddenErr("history me", "line #%d is not one of your lines, or was already removed: nothing was changed. Only the athlete themself or a coach may %s a line; `history me` shows your lines' numbers, and a head coach links you with `athlete link NAME @you`.", n, verb)
+	if !found || l.AthleteID == 0 || c.user.Role != record.RoleAthlete || l.AthleteID != c.user.AthleteID {
+		return l, record.Athlete{}, refuse
+	}
+	ath, ok, err := tx.AthleteByID(l.AthleteID)
+	if err != nil {
+		return l, ath, err
+	}
+	if !ok {
+		return l, ath, refuse
 	}
 	return l, ath, nil
 }

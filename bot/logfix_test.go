@@ -251,3 +251,42 @@ func TestDropSaysWhenALaterLineBreaks(t *testing.T) {
 	te.must("log Kai 1.95 xx meet")
 	contains(t, te.must("drop #2"), "Note: without it", "line #3", "no longer counts")
 }
+
+// An athlete trying line numbers learns nothing about other athletes'
+// lines: another athlete's line, a removed line, an import and a number
+// never used all get the same refusal, and nothing changes; their own line
+// they may drop.
+func TestLineNumbersTellAnAthleteNothing(t *testing.T) {
+	te := newTestEngine(t)
+	logAddAthlete(t, te.DB, logMira())
+	logAddAthlete(t, te.DB, logKai())
+	kai := logProfile(t, te.DB, "Kai")
+	logUser(t, te.DB, record.User{ID: "U_KAI", Name: "Kai", Role: record.RoleAthlete, AthleteID: kai.ID})
+	te.must("log Mira 1.65 o") // #1, another athlete's
+	te.must("log Mira 1.70 o") // #2, removed below
+	te.must("drop #2")
+	own := te.as("U_KAI", "log me 1.90 o") // #3, Kai's own
+	if !own.OK() {
+		t.Fatal(plain(own))
+	}
+	want := func(n string) string {
+		return "line #" + n + " is not one of your lines, or was already removed: nothing was changed."
+	}
+	for _, probe := range []struct{ line, n string }{
+		{"drop #1", "1"}, {"drop #2", "2"}, {"drop #99", "99"},
+		{"fix #1 1.60 o", "1"}, {"fix #99 1.60 o", "99"}, {"undo line 1", "1"},
+	} {
+		sum := te.checksum()
+		r := te.as("U_KAI", probe.line)
+		if r.Kind != bot.KindForbidden {
+			t.Errorf("%q as an athlete: kind %v\n%s", probe.line, r.Kind, plain(r))
+		}
+		if got := r.Lines[0]; !strings.HasPrefix(got, want(probe.n)) {
+			t.Errorf("%q as an athlete: %q, want the one refusal %q", probe.line, got, want(probe.n))
+		}
+		if te.checksum() != sum {
+			t.Errorf("%q was refused but changed the store", probe.line)
+		}
+	}
+	contains(t, te.as("U_KAI", "drop #3"), "Dropped line #3")
+}
