@@ -700,6 +700,7 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 		per     = map[uint64]int{}
 		passes  = map[uint64]int{}
 		inFile  = map[csvSame]bool{}
+		flagged []rowFlags
 	)
 	flush := func() error {
 		if len(batch) == 0 {
@@ -745,6 +746,9 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 			}
 			if a.MessageID != "" && !slices.Contains(newMsgs, a.MessageID) {
 				newMsgs = append(newMsgs, a.MessageID)
+			}
+			if f, ok := importRowFlags(row.row, a, athletes[a.AthleteID], team); ok {
+				flagged = append(flagged, f)
 			}
 			per[a.AthleteID]++
 			if a.Outcome == record.Passed {
@@ -804,6 +808,9 @@ func (c *call) importInTx(tx Tx, source string, data []byte, progress func(done,
 	}}
 	if dups > 0 {
 		r.Lines = append(r.Lines, fmt.Sprintf("Skipped %s already stored: the message id was handled before, or the same attempt is logged.", plural(dups, "duplicate row")))
+	}
+	if l := importCheckLine(flagged); l != "" {
+		r.Lines = append(r.Lines, l)
 	}
 	r.Lines = append(r.Lines, "Rows keep their own times and message ids. An import never changes a profile's personal best; `undo` takes the whole import back within 24 hours.")
 	var names []string

@@ -380,3 +380,28 @@ func TestImportPlausibilityNeedsConfirm(t *testing.T) {
 		t.Errorf("%d attempts after import ... confirm, want 2", n)
 	}
 }
+
+// Imported rows get the range flags a log line gets: a vz of 6.0 m/s is
+// above every published take-off vz (elite men 4.3–4.7 m/s, Dapena's
+// reports, from memory) and a take-off 2.5 m out is beyond 0.9–1.3 m (same
+// source); a row at vz 4.0 m/s, 1.0 m out (elite women 3.9–4.3 m/s, from
+// memory) is not named. Flags never block the import.
+func TestImportFlagsRowsOutsidePublishedRanges(t *testing.T) {
+	te := newTestEngine(t)
+	logAddAthlete(t, te.DB, logMira()) // sex f
+	csv := "athlete,time,bar_m,outcome,meet,vz_ms,takeoff_m,message_id\n" +
+		"Mira,2026-01-05T17:00:00Z,1.70,o,false,4.0,1.0,a\n" +
+		"Mira,2026-01-05T17:01:00Z,1.72,x,false,6.0,2.5,a\n"
+	path := filepath.Join(t.TempDir(), "flags.csv")
+	if err := os.WriteFile(path, []byte(csv), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	r := te.must("import csv " + path)
+	contains(t, r, "Check 1 row against the published ranges", "row 3 vz 6.00 m/s", "take-off")
+	if p := plain(r); strings.Contains(p, "row 2 ") {
+		t.Errorf("the row inside the ranges is named:\n%s", p)
+	}
+	if n := len(logAttempts(t, te.DB, "Mira")); n != 2 {
+		t.Errorf("%d attempts stored, want both rows", n)
+	}
+}
