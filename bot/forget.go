@@ -18,6 +18,9 @@ type forgotten struct {
 	// Sheets counts the meet sheets (open and filed) the athlete was taken
 	// off: renamed to a neutral label, not deleted (not a record removed).
 	Sheets int `json:"meet_sheets"`
+	// Audit counts the audit entries pseudonymised (scrubAudit): kept,
+	// without the athlete's name and values (not a record removed).
+	Audit int `json:"audit_entries_pseudonymised"`
 }
 
 // total is every record removed: a linked user's record is counted once,
@@ -34,6 +37,9 @@ func (n forgotten) sentence() string {
 	if n.Sheets > 0 {
 		s += fmt.Sprintf(" Taken off %s (named %q there; other places unchanged).", plural(n.Sheets, "meet sheet"), meetsheet.RemovedLabel)
 	}
+	if n.Audit > 0 {
+		s += fmt.Sprintf(" Took the name and values out of %s (who changed what, and when, stays).", plural(n.Audit, "audit entry"))
+	}
 	return s
 }
 
@@ -41,7 +47,8 @@ func (n forgotten) sentence() string {
 // its attempts and logged lines, the chat users' links to it, and the
 // athlete role of a user linked to it (a user left with no role and no
 // link is removed); on the open and the filed meet sheets the athlete's
-// name and id give way to a neutral label (scrubSheets).
+// name and id give way to a neutral label (scrubSheets), and so they do in
+// the audit trail (scrubAudit).
 func (c *call) forgetInTx(tx Tx, a record.Athlete) (forgetExport, forgotten, error) {
 	exp := forgetExport{Exported: c.now.UTC(), Athlete: a}
 	var n forgotten
@@ -70,6 +77,7 @@ func (c *call) forgetInTx(tx Tx, a record.Athlete) (forgetExport, forgotten, err
 		return exp, n, err
 	}
 	n.Sheets = len(exp.Sheets)
+	var gone []string
 	for _, u := range users {
 		if u.Role != record.RoleAthlete {
 			continue
@@ -78,6 +86,11 @@ func (c *call) forgetInTx(tx Tx, a record.Athlete) (forgetExport, forgotten, err
 		if err := tx.DeleteUser(u.ID); err != nil {
 			return exp, n, err
 		}
+		gone = append(gone, u.ID)
 	}
-	return exp, n, c.auditFor(tx, a.ID, "forget", a.Name, n, nil)
+	if n.Audit, err = scrubAudit(tx, a, gone); err != nil {
+		return exp, n, err
+	}
+	// The forget itself is recorded without the name it took out.
+	return exp, n, c.auditFor(tx, 0, "forget", meetsheet.RemovedLabel, n, nil)
 }

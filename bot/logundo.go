@@ -166,6 +166,9 @@ func (c *call) undoInTx(tx Tx, confirm bool) (Reply, error) {
 	if c.now.Sub(e.Time) > undoWindow {
 		return Reply{}, conflictErr("history", "your last change (%s %s, %s) is more than 24 hours old; undo only takes back changes from the last 24 hours, and nothing was changed (fix #N and drop #N correct an older line)", e.Action, clip(e.Subject, 40), when)
 	}
+	if e.Forgotten {
+		return Reply{}, conflictErr("audit", "your last change (%s, %s) was about an athlete since forgotten: what it changed is gone, and nothing was changed", e.Action, when)
+	}
 	var r Reply
 	switch e.Action {
 	case auditLog, auditImportCSV, auditFix, auditDrop:

@@ -318,6 +318,6 @@ func runForget(c *call) (Reply, error) {
 		Lines:     []string{n.sentence(), "The export below is the only copy the bot keeps; hand it to the athlete or their guardian and keep it safe."},
 		Ephemeral: true,
 		Files:     []File{{Name: "lathmark-forget-" + strings.ToLower(name) + ".json", MIME: "application/json", Title: "Data of " + name, Data: data}},
-		Caution:   "Backups made before today still hold this athlete's data, and the audit trail keeps who changed what; delete or let backups expire as your data policy says.",
+		Caution:   "Backups made before today still hold this athlete's data; delete or let them expire as your data policy says. The audit trail keeps who changed what and when, without the athlete's name or values.",
 	}, nil
 }

@@ -75,6 +75,9 @@ type Tx interface {
 	// AuditEntries calls fn for entries with Time >= since, oldest first
 	// (record.ErrStop ends early).
 	AuditEntries(since time.Time, fn func(record.AuditEntry) error) error
+	// RewriteAudit stores fn's entry in place of each entry fn reports
+	// changed, keeping its key: forget's pseudonymisation, nothing else.
+	RewriteAudit(fn func(record.AuditEntry) (record.AuditEntry, bool)) (int, error)
 
 	// DigestPosted reports when the digest of an ISO week ("2026-W49") went out.
 	DigestPosted(week string) (at time.Time, ok bool, err error)

@@ -243,8 +243,8 @@ func (t *Tx) putAthlete(a *record.Athlete) error {
 // DeleteAthlete removes the profile and its name index entry, all its
 // attempts (one range delete), the logged lines for it, and unlinks chat
 // users linked to it (their AthleteID becomes 0). removed counts the
-// profile, attempts, lines and unlinked users. The audit trail is kept:
-// it is append-only.
+// profile, attempts, lines and unlinked users. The audit trail is kept
+// (forget pseudonymises it with RewriteAudit).
 func (t *Tx) DeleteAthlete(id uint64) (int, error) {
 	removed, err := t.deleteAthlete(id)
 	if err != nil {
@@ -771,8 +771,8 @@ func (t *Tx) PruneSeen(before time.Time) (int, error) {
 }
 
 // Audit appends an entry to the audit trail under its time and the audit
-// bucket's next sequence number. Nothing in this package deletes or
-// rewrites audit entries.
+// bucket's next sequence number. Nothing in this package deletes audit
+// entries; only RewriteAudit (forget's pseudonymisation) rewrites them.
 func (t *Tx) Audit(e record.AuditEntry) error {
 	err := func() error {
 		n, err := nanos(e.Time)

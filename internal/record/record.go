@@ -255,6 +255,9 @@ type AuditEntry struct {
 	// Seeded marks changes made by seeding the invented demo data; undo
 	// never takes them back.
 	Seeded bool `json:"seeded,omitempty"`
+	// Forgotten marks an entry `forget` pseudonymised: its subject is the
+	// neutral label, its values are gone, and undo cannot take it back.
+	Forgotten bool `json:"forgotten,omitempty"`
 }
 
 // ErrStop, returned from an iteration callback, ends the iteration early;
