@@ -160,7 +160,7 @@ func Make(in Input) (Plan, error) {
 	}
 	p.Reasons = append(p.Reasons, fmt.Sprintf("ceiling %.2f m: highest bar made on at least half its tries (%d of %d)", p.CeilingM, p.CeilingMade, p.CeilingTried))
 	if in.PBM > 0 {
-		p.Reasons = append(p.Reasons, fmt.Sprintf("ceiling is %.0f cm under the PB", 100*(in.PBM-p.CeilingM)))
+		p.Reasons = append(p.Reasons, ceilingVsPB(p.CeilingM, in.PBM))
 	}
 	switch {
 	case in.Kind == Meet && len(in.StepsM) > 0:
@@ -434,4 +434,18 @@ func (p Plan) Rises() []float64 {
 		out = append(out, p.Heights[i].BarM-p.Heights[i-1].BarM)
 	}
 	return slices.Clip(out)
+}
+
+// ceilingVsPB words the ceiling against the personal best in whole
+// centimetres: "ceiling 4 cm under the PB", "ceiling at the PB",
+// "ceiling 1 cm over the PB (practice above the PB)".
+func ceilingVsPB(ceilingM, pbM float64) string {
+	cm := math.Round(100 * (pbM - ceilingM))
+	switch {
+	case cm > 0:
+		return fmt.Sprintf("ceiling %.0f cm under the PB", cm)
+	case cm < 0:
+		return fmt.Sprintf("ceiling %.0f cm over the PB (practice bars above the PB)", -cm)
+	}
+	return "ceiling at the PB"
 }

@@ -159,3 +159,21 @@ func TestProgressionEndsOnTop(t *testing.T) {
 		}
 	}
 }
+
+// The ceiling is worded against the PB by its sign, in whole centimetres
+// ("1 cm over", never "-1 cm under").
+func TestCeilingVsPB(t *testing.T) {
+	for _, tt := range []struct {
+		ceilingM, pbM float64
+		want          string
+	}{
+		{1.77, 1.81, "ceiling 4 cm under the PB"},
+		{1.82, 1.81, "ceiling 1 cm over the PB (practice bars above the PB)"},
+		{1.81, 1.81, "ceiling at the PB"},
+		{1.806, 1.81, "ceiling at the PB"},
+	} {
+		if got := ceilingVsPB(tt.ceilingM, tt.pbM); got != tt.want {
+			t.Errorf("ceiling %.3f, PB %.2f: %q, want %q", tt.ceilingM, tt.pbM, got, tt.want)
+		}
+	}
+}
