@@ -431,3 +431,32 @@ func TestMeetStandingsBudget(t *testing.T) {
 		}
 	}
 }
+
+// An athlete's own meet line is logged but kept off the sheet, which the
+// coach keeps as the scorer's record, and the reply says so; an athlete not
+// on the sheet hears nothing about it.
+func TestAthleteOwnMeetLineStaysOffTheSheet(t *testing.T) {
+	te := newTestEngine(t)
+	te.must("athlete add Ren height 1.80")
+	te.must("athlete add Noor height 1.74")
+	te.must("athlete link Ren <@U_REN>")
+	te.must("athlete link Noor <@U_NOOR>")
+	te.must("meet open Club")
+	te.must("meet add Ren")
+	before, _ := storedSheets(t, te)
+	r := te.as("U_REN", "log me 1.60 o meet")
+	if !r.OK() {
+		t.Fatal(plain(r))
+	}
+	contains(t, r, "not on the sheet of Club: the coach keeping it enters attempts there")
+	after, _ := storedSheets(t, te)
+	if len(after.Entries) != len(before.Entries) {
+		t.Errorf("an athlete's own line went on the sheet: %d entries, was %d", len(after.Entries), len(before.Entries))
+	}
+	if n := len(logAttempts(t, te.DB, "Ren")); n != 1 {
+		t.Errorf("%d attempts logged, want 1", n)
+	}
+	if p := plain(te.as("U_NOOR", "log me 1.55 o meet")); strings.Contains(p, "sheet") {
+		t.Errorf("an athlete off the sheet is told about it:\n%s", p)
+	}
+}

@@ -11,11 +11,11 @@ import (
 // meet line (log NAME ... meet) for a squad athlete on the open sheet goes
 // on the sheet too, checked there by the competition rules; a line the
 // sheet refuses is refused whole (nothing is logged). add holds the line's
-// stored attempts (keys assigned). Practice lines, athletes' own lines,
-// athletes not on the sheet and days other than the sheet's leave the
-// sheet alone.
+// stored attempts (keys assigned). Practice lines, athletes' own lines
+// (the reply says so when they are on today's sheet), athletes not on the
+// sheet and days other than the sheet's leave the sheet alone.
 func (c *call) onMeetSheet(tx Tx, ath record.Athlete, add []record.Attempt, r *Reply) error {
-	if len(add) == 0 || !add[0].Meet || rank(c.user.Role) < rank(record.RoleCoach) {
+	if len(add) == 0 || !add[0].Meet {
 		return nil
 	}
 	s, ok, err := openSheet(tx)
@@ -27,7 +27,16 @@ func (c *call) onMeetSheet(tx Tx, ath record.Athlete, add []record.Attempt, r *R
 		return err
 	}
 	imp := imperial(team)
-	if today := c.now.In(loc).Format("2006-01-02"); s.Date != today {
+	today := c.now.In(loc).Format("2006-01-02")
+	if rank(c.user.Role) < rank(record.RoleCoach) {
+		// The sheet is the coaches' (the scorer's) record: an athlete's own
+		// line is logged, and the athlete told it is not on the sheet.
+		if _, on := s.FindAthlete(ath.ID); on && s.Date == today {
+			r.Lines = append(r.Lines, "Logged for you; not on the sheet of "+s.Name+": the coach keeping it enters attempts there.")
+		}
+		return nil
+	}
+	if s.Date != today {
 		r.Lines = append(r.Lines, "The open sheet ("+s.Name+") is for "+s.Date+"; this line is not on it.")
 		return nil
 	}
