@@ -178,6 +178,11 @@ func walkPages(f io.ReaderAt, size int64, p *problemList) {
 		p.add("pages: %v", err)
 		return
 	}
+	walkFrom(f, m, p)
+}
+
+// walkFrom is walkPages from the given meta page's root and freelist.
+func walkFrom(f io.ReaderAt, m boltMeta, p *problemList) {
 	w := &pageWalk{f: f, meta: m, seen: map[uint64]bool{}, p: p}
 	w.freelist()
 	w.tree(m.root, 0, nil, nil)

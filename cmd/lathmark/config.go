@@ -21,7 +21,7 @@ type stdio struct {
 
 // config is everything the process was told, from flags and environment.
 type config struct {
-	Sub      string // "", "backup", "restore", "check"
+	Sub      string // "", "backup", "restore", "check", "mend"
 	SubArgs  []string
 	DataPath string
 	Demo     bool
@@ -48,13 +48,13 @@ func parseConfig(args []string, getenv func(string) string, errOut io.Writer) (c
 	var c config
 	if len(args) > 0 && !strings.HasPrefix(args[0], "-") {
 		switch args[0] {
-		case "run", "backup", "restore", "check":
+		case "run", "backup", "restore", "check", "mend":
 			c.Sub, args = args[0], args[1:]
 			if c.Sub == "run" {
 				c.Sub = ""
 			}
 		default:
-			return c, fmt.Errorf("unknown subcommand %q; use run, backup, restore or check (lathmark -h)", args[0])
+			return c, fmt.Errorf("unknown subcommand %q; use run, backup, restore, check or mend (lathmark -h)", args[0])
 		}
 	}
 	fs := flag.NewFlagSet("lathmark", flag.ContinueOnError)
@@ -68,7 +68,7 @@ func parseConfig(args []string, getenv func(string) string, errOut io.Writer) (c
 	fs.StringVar(&c.LogLevel, "log", envOr(getenv, "LATHMARK_LOG", "info"), "log level: debug, info, warn, error")
 	fs.StringVar(&c.HTTPAddr, "http", getenv("LATHMARK_HTTP"), "Slack over HTTP: listen address, e.g. :8080 (needs SLACK_SIGNING_SECRET)")
 	fs.Usage = func() {
-		fmt.Fprintln(errOut, "usage: lathmark [run|backup FILE|restore FILE|check] [flags]")
+		fmt.Fprintln(errOut, "usage: lathmark [run|backup FILE|restore FILE|check|mend] [flags]")
 		fs.PrintDefaults()
 		fmt.Fprintln(errOut, "\nSlack: SLACK_BOT_TOKEN with SLACK_APP_TOKEN (socket mode) or SLACK_SIGNING_SECRET and --http; SLACK_API_URL overrides the API base. Each may be given as NAME_FILE, a file holding the value.")
 	}

@@ -6,6 +6,7 @@
 //	lathmark backup [flags] FILE  hot copy of the data file
 //	lathmark restore [flags] FILE put a backup in place of the data file
 //	lathmark check [flags]        verify the data file's consistency
+//	lathmark mend [flags] [FILE]  rebuild one damaged meta page from the other
 package main
 
 import (
@@ -14,7 +15,9 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
+	"strings"
 	"syscall"
+	"time"
 	_ "time/tzdata" // time zones on machines without a zone database
 
 	"github.com/lathmark-team/lathmark/store"
@@ -45,6 +48,8 @@ func run(ctx context.Context, args []string, io stdio, getenv func(string) strin
 		err = runRestore(cfg, io)
 	case "check":
 		err = checkData(cfg, io)
+	case "mend":
+		err = mendData(cfg, io, time.Now())
 	default:
 		err = runBot(ctx, cfg, io)
 	}
@@ -52,6 +57,9 @@ func run(ctx context.Context, args []string, io stdio, getenv func(string) strin
 		fmt.Fprintln(io.Err, "lathmark:", err)
 		if errors.Is(err, store.ErrDamaged) && cfg.Sub == "" && !cfg.Demo {
 			// The file was refused at open or a read met damage.
+			if strings.Contains(err.Error(), "meta page") {
+				fmt.Fprintf(io.Err, "One of the file's two meta pages is damaged (a write cut off, as by a power cut, or a bad disk block). `lathmark mend --data %s` rebuilds it from the other and keeps a copy of the file as it was; at most the change saved last may be missing. Or restore the newest backup:\n", cfg.DataPath)
+			}
 			fmt.Fprintln(io.Err, damageAdvice(cfg.DataPath))
 		}
 		return 1
