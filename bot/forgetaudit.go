@@ -23,15 +23,19 @@ import (
 // scrubAudit pseudonymises the audit entries about athlete a and by the
 // deleted chat users gone (their ids); it returns the entries rewritten.
 func scrubAudit(tx Tx, a record.Athlete, gone []string) (int, error) {
-	var all []record.AuditEntry
+	// The names come from the renames, which may follow entries made under
+	// an earlier name: one pass for them, kept alone, then the rewrite.
+	var renames []record.AuditEntry
 	if err := tx.AuditEntries(time.Unix(0, 0), func(e record.AuditEntry) error {
-		all = append(all, e)
+		if e.Action == "athlete rename" {
+			renames = append(renames, e)
+		}
 		return nil
 	}); err != nil {
 		return 0, err
 	}
 	var names []string // every name the athlete bore
-	for _, s := range namesHeld(a, all) {
+	for _, s := range namesHeld(a, renames) {
 		names = append(names, s.name)
 	}
 	named := func(subject string) bool {

@@ -334,7 +334,11 @@ func sealInvariants(tx *bolt.Tx, p *problemList) {
 // damagedFile marks err, found by reading the file's structure, as damage:
 // it matches both ErrDamaged and ErrInconsistent.
 func damagedFile(err error) error {
-	return fmt.Errorf("%v: %w (%w)", err, ErrDamaged, ErrInconsistent)
+	d := fmt.Errorf("%v: %w (%w)", err, ErrDamaged, ErrInconsistent)
+	if errors.Is(err, ErrMetaDamaged) {
+		return metaPageError{d}
+	}
+	return d
 }
 
 // Stats counts the records in each bucket.

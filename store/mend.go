@@ -54,15 +54,18 @@ func MendMeta(path, copyPath string, at time.Time) (rep MendReport, err error) {
 	if _, err := os.Stat(copyPath); !errors.Is(err, os.ErrNotExist) {
 		return rep, fmt.Errorf("store: mend %s: the copy %s already exists (or cannot be checked: %v); nothing was changed", path, copyPath, err)
 	}
-	if err := copyFile(path, copyPath); err != nil {
-		return rep, fmt.Errorf("store: mend %s: keep a copy: %w", path, err)
-	}
+	// The lock first (opening writes nothing), so that a bot holding the
+	// file leaves no copy behind; the copy is read under the lock.
 	bdb, err := bolt.Open(path, fileMode, &bolt.Options{Timeout: time.Second})
 	if errors.Is(err, bolterrors.ErrTimeout) {
 		return rep, &LockedError{Path: path, Waited: time.Second, err: err}
 	}
 	if err != nil {
 		return rep, fmt.Errorf("store: mend %s: %w", path, err)
+	}
+	if err := copyFile(path, copyPath); err != nil {
+		_ = bdb.Close()
+		return rep, fmt.Errorf("store: mend %s: keep a copy: %w", path, err)
 	}
 	entry := record.AuditEntry{Time: at, Actor: "lathmark mend", Action: "mend",
 		Subject: "data file", After: fmt.Sprintf(`{"meta_page_rebuilt":%d,"from_commit":%d}`, damaged, good.txid)}

@@ -109,14 +109,14 @@ func quickCheck(f io.ReaderAt, size int64) (boltMeta, error) {
 		}
 	}
 	if err != nil {
-		return boltMeta{}, err
+		return boltMeta{}, metaPageError{err}
 	}
 	if _, err := f.ReadAt(buf, int64(m0.pageSize)); err != nil {
 		return boltMeta{}, fmt.Errorf("read meta page 1: %w", err)
 	}
 	m1, err := parseMeta(buf, 1)
 	if err != nil {
-		return boltMeta{}, err
+		return boltMeta{}, metaPageError{err}
 	}
 	if m1.pageSize != m0.pageSize {
 		return boltMeta{}, fmt.Errorf("meta pages disagree on the page size (%d and %d)", m0.pageSize, m1.pageSize)
@@ -130,6 +130,17 @@ func quickCheck(f io.ReaderAt, size int64) (boltMeta, error) {
 	}
 	return m, nil
 }
+
+// ErrMetaDamaged marks a file refused because a meta page fails its
+// checks (errors.Is); with the other one sound, MendMeta can mend it.
+var ErrMetaDamaged = errors.New("a meta page is damaged")
+
+// metaPageError is a meta page's problem: its own message, matching
+// ErrMetaDamaged as well as what it wraps.
+type metaPageError struct{ err error }
+
+func (e metaPageError) Error() string   { return e.err.Error() }
+func (e metaPageError) Unwrap() []error { return []error{e.err, ErrMetaDamaged} }
 
 // errNotBolt marks a file that is no bbolt file at all; it matches bbolt's
 // errors.ErrInvalid, as bbolt's own Open would say.

@@ -15,7 +15,6 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
-	"strings"
 	"syscall"
 	"time"
 	_ "time/tzdata" // time zones on machines without a zone database
@@ -57,7 +56,7 @@ func run(ctx context.Context, args []string, io stdio, getenv func(string) strin
 		fmt.Fprintln(io.Err, "lathmark:", err)
 		if errors.Is(err, store.ErrDamaged) && cfg.Sub == "" && !cfg.Demo {
 			// The file was refused at open or a read met damage.
-			if strings.Contains(err.Error(), "meta page") {
+			if errors.Is(err, store.ErrMetaDamaged) {
 				fmt.Fprintf(io.Err, "One of the file's two meta pages is damaged (a write cut off, as by a power cut, or a bad disk block). `lathmark mend --data %s` rebuilds it from the other and keeps a copy of the file as it was; at most the change saved last may be missing. Or restore the newest backup:\n", cfg.DataPath)
 			}
 			fmt.Fprintln(io.Err, damageAdvice(cfg.DataPath))
